@@ -1,0 +1,313 @@
+//! Dispersion models: how a material's complex index N = n + i k depends on wavelength.
+//!
+//! Formulas take the wavelength in micrometres (λ, "um" below) because that is how the
+//! published coefficients are written; [`Model::index_at`] takes nanometres like the rest of
+//! the program.
+
+use num_complex::Complex64;
+use serde::{Deserialize, Serialize};
+
+use super::MaterialError;
+
+/// Photon energy in eV times wavelength in µm (h c / e), as used by the Lorentz–Drude form.
+pub const EV_UM: f64 = 1.239_841_984;
+
+/// One Lorentz oscillator of a [`Model::LorentzDrude`] material.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Oscillator {
+    /// Oscillator strength f_j (dimensionless).
+    pub f: f64,
+    /// Damping Γ_j in eV.
+    pub gamma_ev: f64,
+    /// Resonance energy ω_j in eV.
+    pub omega_ev: f64,
+}
+
+/// A dispersion model. The RON spelling of each variant is part of the design-file format.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[non_exhaustive]
+pub enum Model {
+    /// The same N = n + i k at every wavelength.
+    Constant {
+        /// Refractive index n.
+        n: f64,
+        /// Extinction coefficient k (>= 0).
+        #[serde(default)]
+        k: f64,
+    },
+    /// n = a + b/λ² + c/λ⁴ with λ in µm; k = 0.
+    Cauchy {
+        /// Constant term.
+        a: f64,
+        /// Coefficient of 1/λ² (µm²).
+        #[serde(default)]
+        b: f64,
+        /// Coefficient of 1/λ⁴ (µm⁴).
+        #[serde(default)]
+        c: f64,
+    },
+    /// n² = 1 + a + Σ b_i λ²/(λ² − c_i) with λ in µm and c_i in µm²; k = 0.
+    Sellmeier {
+        /// Extra constant added to 1 (0 for the classic form).
+        #[serde(default, skip_serializing_if = "is_zero")]
+        a: f64,
+        /// Strengths b_i.
+        b: Vec<f64>,
+        /// Resonance wavelengths squared, c_i in µm².
+        c: Vec<f64>,
+    },
+    /// n² = a + Σ b_i / (λ² − c_i) with λ in µm and c_i in µm²; k = 0.
+    /// (A pole at c_i = 0 gives a plain b/λ² term.)
+    Rational {
+        /// Constant term (ε at infinite frequency).
+        a: f64,
+        /// Numerators b_i (µm²).
+        b: Vec<f64>,
+        /// Pole positions c_i (µm²).
+        c: Vec<f64>,
+    },
+    /// Rows of (wavelength nm, n, k), interpolated linearly in wavelength; the end values are
+    /// held outside the rows (and flagged as extrapolated by the caller).
+    Table {
+        /// (wavelength nm, n, k), strictly increasing in wavelength.
+        rows: Vec<(f64, f64, f64)>,
+    },
+    /// A formula for n with a separate table of k: rows of (wavelength nm, k), linear in
+    /// wavelength, end values held outside the rows.
+    WithK {
+        /// Model for the real part (its own k is ignored).
+        n: Box<Model>,
+        /// (wavelength nm, k), strictly increasing in wavelength.
+        k: Vec<(f64, f64)>,
+    },
+    /// Lorentz–Drude permittivity (the Rakić et al. 1998 form):
+    /// ε(ω) = 1 − f₀ωₚ²/(ω(ω + iΓ₀)) + Σ f_j ωₚ²/(ω_j² − ω² − iωΓ_j), ω in eV, N = √ε.
+    LorentzDrude {
+        /// Plasma energy ωₚ in eV.
+        plasma_ev: f64,
+        /// Drude (free-electron) strength f₀.
+        f0: f64,
+        /// Drude damping Γ₀ in eV.
+        gamma0_ev: f64,
+        /// Bound-electron oscillators.
+        oscillators: Vec<Oscillator>,
+    },
+}
+
+#[expect(clippy::trivially_copy_pass_by_ref, reason = "serde's skip_serializing_if signature")]
+fn is_zero(x: &f64) -> bool {
+    *x == 0.0
+}
+
+/// Linear interpolation over rows sorted by wavelength (`at` gives a row's wavelength, `val` its
+/// value); the end values are held outside the rows.
+fn interp<R>(rows: &[R], x: f64, at: impl Fn(&R) -> f64, val: impl Fn(&R) -> f64) -> f64 {
+    let hi = rows.partition_point(|r| at(r) <= x);
+    if hi == 0 {
+        return val(&rows[0]);
+    }
+    if hi == rows.len() {
+        return val(&rows[hi - 1]);
+    }
+    let (a, b) = (&rows[hi - 1], &rows[hi]);
+    let t = (x - at(a)) / (at(b) - at(a));
+    val(a) + t * (val(b) - val(a))
+}
+
+impl Model {
+    /// A short name of the model kind, for tables and the CLI.
+    #[must_use]
+    pub fn kind_name(&self) -> &'static str {
+        match self {
+            Model::Constant { .. } => "constant",
+            Model::Cauchy { .. } => "Cauchy",
+            Model::Sellmeier { .. } => "Sellmeier",
+            Model::Rational { .. } => "rational",
+            Model::Table { .. } => "table",
+            Model::WithK { .. } => "formula + k table",
+            Model::LorentzDrude { .. } => "Lorentz-Drude",
+        }
+    }
+
+    /// The wavelength span (nm) covered by tabulated data, if the model has any.
+    #[must_use]
+    pub fn table_span_nm(&self) -> Option<(f64, f64)> {
+        match self {
+            Model::Table { rows } => Some((rows.first()?.0, rows.last()?.0)),
+            Model::WithK { n, k } => {
+                let (lo, hi) = (k.first()?.0, k.last()?.0);
+                match n.table_span_nm() {
+                    Some((a, b)) => Some((lo.max(a), hi.min(b))),
+                    None => Some((lo, hi)),
+                }
+            }
+            _ => None,
+        }
+    }
+
+    /// Checks the coefficients once, so evaluation can stay branch-free.
+    pub fn validate(&self, name: &str) -> Result<(), MaterialError> {
+        let bad = |what: String| MaterialError::BadModel { name: name.to_owned(), what };
+        let all_finite = |xs: &[f64]| xs.iter().all(|x| x.is_finite());
+        match self {
+            Model::Constant { n, k } => {
+                if !(n.is_finite() && *n > 0.0) {
+                    return Err(bad(format!("n must be a positive number, got {n}")));
+                }
+                if !(k.is_finite() && *k >= 0.0) {
+                    return Err(bad(format!("k must be zero or positive, got {k}")));
+                }
+            }
+            Model::Cauchy { a, b, c } => {
+                if !all_finite(&[*a, *b, *c]) {
+                    return Err(bad("Cauchy coefficients must be finite numbers".into()));
+                }
+            }
+            Model::Sellmeier { a, b, c } | Model::Rational { a, b, c } => {
+                if b.len() != c.len() {
+                    return Err(bad(format!(
+                        "b has {} terms but c has {}; they must pair up",
+                        b.len(),
+                        c.len()
+                    )));
+                }
+                if !(a.is_finite() && all_finite(b) && all_finite(c)) {
+                    return Err(bad("coefficients must be finite numbers".into()));
+                }
+            }
+            Model::Table { rows } => {
+                check_rows(rows.iter().map(|r| (r.0, r.1, r.2)), name)?;
+            }
+            Model::WithK { n, k } => {
+                n.validate(name)?;
+                check_rows(k.iter().map(|r| (r.0, 1.0, r.1)), name)?;
+            }
+            Model::LorentzDrude { plasma_ev, f0, gamma0_ev, oscillators } => {
+                let mut xs = vec![*plasma_ev, *f0, *gamma0_ev];
+                for o in oscillators {
+                    xs.extend([o.f, o.gamma_ev, o.omega_ev]);
+                }
+                if !all_finite(&xs) {
+                    return Err(bad("Lorentz-Drude parameters must be finite numbers".into()));
+                }
+            }
+        }
+        Ok(())
+    }
+
+    /// N = n + i k at a wavelength in nanometres. May be non-finite for coefficients that put
+    /// a pole at this wavelength; `Material::index_at` turns that into an error.
+    #[must_use]
+    pub fn index_at(&self, wavelength_nm: f64) -> Complex64 {
+        let um = wavelength_nm * 1e-3;
+        let l2 = um * um;
+        match self {
+            Model::Constant { n, k } => Complex64::new(*n, *k),
+            Model::Cauchy { a, b, c } => Complex64::new(a + b / l2 + c / (l2 * l2), 0.0),
+            Model::Sellmeier { a, b, c } => {
+                let n2 = 1.0 + a + b.iter().zip(c).map(|(b, c)| b * l2 / (l2 - c)).sum::<f64>();
+                real_sqrt(n2)
+            }
+            Model::Rational { a, b, c } => {
+                let n2 = a + b.iter().zip(c).map(|(b, c)| b / (l2 - c)).sum::<f64>();
+                real_sqrt(n2)
+            }
+            Model::Table { rows } => {
+                let n = interp(rows, wavelength_nm, |r| r.0, |r| r.1);
+                let k = interp(rows, wavelength_nm, |r| r.0, |r| r.2);
+                Complex64::new(n, k)
+            }
+            Model::WithK { n, k } => {
+                let re = n.index_at(wavelength_nm).re;
+                Complex64::new(re, interp(k, wavelength_nm, |r| r.0, |r| r.1))
+            }
+            Model::LorentzDrude { plasma_ev, f0, gamma0_ev, oscillators } => {
+                let w = EV_UM / um;
+                let wp2 = plasma_ev * plasma_ev;
+                let i = Complex64::i();
+                let mut eps = Complex64::new(1.0, 0.0) - f0 * wp2 / (w * (w + i * gamma0_ev));
+                for o in oscillators {
+                    eps += o.f * wp2
+                        / (Complex64::new(o.omega_ev * o.omega_ev - w * w, 0.0) - i * w * o.gamma_ev);
+                }
+                let mut n = eps.sqrt();
+                if n.im < 0.0 {
+                    n = -n;
+                }
+                n
+            }
+        }
+    }
+}
+
+/// √(n²) for a lossless formula; a negative n² (inside an absorption band the formula does not
+/// model) becomes NaN so the caller reports it.
+fn real_sqrt(n2: f64) -> Complex64 {
+    if n2 > 0.0 { Complex64::new(n2.sqrt(), 0.0) } else { Complex64::new(f64::NAN, 0.0) }
+}
+
+fn check_rows(
+    rows: impl Iterator<Item = (f64, f64, f64)>,
+    name: &str,
+) -> Result<(), MaterialError> {
+    let bad = |what: String| MaterialError::BadModel { name: name.to_owned(), what };
+    let mut prev: Option<f64> = None;
+    let mut count = 0;
+    for (i, (wl, n, k)) in rows.enumerate() {
+        count += 1;
+        let row = i + 1;
+        if !(wl.is_finite() && wl > 0.0) {
+            return Err(bad(format!("row {row}: wavelength must be a positive number, got {wl}")));
+        }
+        if !(n.is_finite() && n > 0.0) {
+            return Err(bad(format!("row {row} ({wl} nm): n must be positive, got {n}")));
+        }
+        if !(k.is_finite() && k >= 0.0) {
+            return Err(bad(format!("row {row} ({wl} nm): k must be zero or positive, got {k}")));
+        }
+        if let Some(p) = prev
+            && wl <= p
+        {
+            return Err(bad(format!(
+                "row {row}: wavelengths must increase, but {wl} nm follows {p} nm"
+            )));
+        }
+        prev = Some(wl);
+    }
+    if count == 0 {
+        return Err(bad("the table has no rows".into()));
+    }
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use approx::assert_relative_eq;
+
+    #[test]
+    fn table_interpolates_linearly_and_holds_ends() {
+        let m = Model::Table { rows: vec![(400.0, 2.0, 0.1), (600.0, 1.0, 0.3)] };
+        let n = m.index_at(500.0);
+        assert_relative_eq!(n.re, 1.5, epsilon = 1e-15);
+        assert_relative_eq!(n.im, 0.2, epsilon = 1e-15);
+        assert_relative_eq!(m.index_at(300.0).re, 2.0, epsilon = 0.0);
+        assert_relative_eq!(m.index_at(900.0).im, 0.3, epsilon = 0.0);
+        assert_relative_eq!(m.index_at(400.0).re, 2.0, epsilon = 0.0);
+        assert_relative_eq!(m.index_at(600.0).re, 1.0, epsilon = 0.0);
+    }
+
+    #[test]
+    fn unsorted_table_is_rejected_with_the_row() {
+        let m = Model::Table { rows: vec![(400.0, 2.0, 0.0), (300.0, 1.0, 0.0)] };
+        let e = m.validate("X").unwrap_err().to_string();
+        assert!(e.contains("row 2") && e.contains("300"), "{e}");
+    }
+
+    #[test]
+    fn sellmeier_pole_gives_nan_not_a_number_silently() {
+        // n² = 1 + 1·λ²/(λ² − 0.25) is negative for 0 < λ² < 0.125 µm²: no real index.
+        let m = Model::Sellmeier { a: 0.0, b: vec![1.0], c: vec![0.25] };
+        assert!(m.index_at(300.0).re.is_nan(), "a negative n² must not turn into a number");
+    }
+}
