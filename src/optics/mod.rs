@@ -1,1 +1,226 @@
-//! placeholder
+//! The physics: reflection, transmission and absorption of a layer stack, by the
+//! characteristic-matrix method. Pure functions of numbers; nothing here knows about files,
+//! designs, threads or screens.
+//!
+//! # Conventions (used everywhere in the program)
+//!
+//! * **Complex index** N = n + i k with k >= 0 for an absorbing medium, as users type it.
+//!   Fields vary as exp(i(k·z − ω t)), so a wave travelling towards +z decays when Im(N) > 0.
+//!   (The other convention, N = n − i k with exp(i(ω t − k z)), conjugates r and t and leaves
+//!   R, T and A unchanged.)
+//! * **Snell invariant** S = n₀ sin θ₀ of the medium the light comes from; in every medium
+//!   the tilted quantity q = N cos θ = √(N² − S²), with the branch chosen so the wave decays
+//!   away from the interface (Im q > 0), or, if q is real, propagates away (Re q > 0). That
+//!   choice makes total internal reflection and frustrated TIR come out right.
+//! * **Tilted admittances**, in units of the free-space admittance: η_s = N cos θ = q and
+//!   η_p = N / cos θ = N² / q.
+//! * **Layer matrix** of a layer of thickness d at vacuum wavelength λ, with phase
+//!   δ = 2π q d / λ: `[[cos δ, −i sin δ / η], [−i η sin δ, cos δ]]` (unimodular).
+//! * **Order.** Layers are numbered in deposition order: layer 1 sits on the substrate, the
+//!   last layer faces the incident medium. The stack's [B; C] = M_last · … · M_1 · [1; η_sub].
+//! * **Results.** With Y = C / B: r = (η₀B − C)/(η₀B + C) (so r_p = r_s at normal incidence),
+//!   R = |r|², T = 4 Re(η₀) Re(η_sub)/|η₀B + C|², A = 4 Re(η₀) Re(B C* − η_sub)/|η₀B + C|².
+//!   R, T, A are fractions 0..1 that sum to 1. The amplitude t is the ratio of electric
+//!   fields: t_s = 2η₀/(η₀B + C), and t_p the same times cos θ₀ / cos θ_sub.
+//! * **Incident medium.** It must be transparent; its k is ignored (only Re N enters η₀).
+//! * **Thick substrate.** A substrate with a thickness is incoherent: the coating's responses
+//!   from both sides and the bare back surface are combined by intensity, with the
+//!   substrate's absorption exp(−4π Im(q) d / λ) over the oblique path (see [`thick`]). In the
+//!   coherent sub-problems the substrate counts with its real index; its k acts through that
+//!   path loss only.
+
+pub mod thick;
+mod tmm;
+
+pub use thick::{ThickSides, combine_back, combine_front};
+pub use tmm::{Amplitudes, Coherent, Tilted, coherent};
+
+use num_complex::Complex64;
+
+/// Which side the light arrives from.
+#[derive(
+    Clone, Copy, Debug, PartialEq, Eq, Hash, Default, serde::Serialize, serde::Deserialize,
+)]
+pub enum Side {
+    /// From the incident medium onto the coating (the usual case).
+    #[default]
+    Front,
+    /// From the exit medium, through the substrate, onto the coating from behind (with a
+    /// semi-infinite substrate: from inside the substrate).
+    Back,
+}
+
+/// Everything the solver needs about one stack at one wavelength: complex indices of the
+/// media and of each distinct layer material, and the layers as (material index, nm).
+#[derive(Clone, Copy, Debug)]
+pub struct StackAt<'a> {
+    /// Index of the incident medium (in front of the coating).
+    pub incident: Complex64,
+    /// Index of the substrate.
+    pub substrate: Complex64,
+    /// Index of the exit medium behind a thick substrate (unused for a semi-infinite one).
+    pub exit: Complex64,
+    /// Index of each distinct layer material.
+    pub materials: &'a [Complex64],
+    /// Layers in deposition order (layer 1, on the substrate, first): (material, nm).
+    pub layers: &'a [(usize, f64)],
+    /// Substrate thickness in mm; `None` for a semi-infinite substrate.
+    pub substrate_mm: Option<f64>,
+}
+
+/// The response of a stack at one wavelength and angle, both polarisations.
+#[derive(Clone, Copy, Debug, PartialEq, Default)]
+pub struct Response {
+    /// Reflectance, s-polarised (fraction).
+    pub r_s: f64,
+    /// Reflectance, p-polarised.
+    pub r_p: f64,
+    /// Transmittance, s-polarised.
+    pub t_s: f64,
+    /// Transmittance, p-polarised.
+    pub t_p: f64,
+    /// Absorptance, s-polarised.
+    pub a_s: f64,
+    /// Absorptance, p-polarised.
+    pub a_p: f64,
+    /// Complex reflection amplitude of the coating, s (for thick substrates: the coating on
+    /// its own, from the side the light arrives at).
+    pub amp_r_s: Complex64,
+    /// Complex reflection amplitude of the coating, p (admittance sign convention).
+    pub amp_r_p: Complex64,
+    /// Complex transmission amplitude of the coating, s.
+    pub amp_t_s: Complex64,
+    /// Complex transmission amplitude of the coating, p.
+    pub amp_t_p: Complex64,
+}
+
+impl Response {
+    /// Mean reflectance of s and p (unpolarised light).
+    #[must_use]
+    pub fn r(&self) -> f64 {
+        0.5 * (self.r_s + self.r_p)
+    }
+
+    /// Mean transmittance of s and p.
+    #[must_use]
+    pub fn t(&self) -> f64 {
+        0.5 * (self.t_s + self.t_p)
+    }
+
+    /// Mean absorptance of s and p.
+    #[must_use]
+    pub fn a(&self) -> f64 {
+        0.5 * (self.a_s + self.a_p)
+    }
+}
+
+/// Solves one stack at one wavelength and angle of incidence (radians, in the medium the light
+/// arrives from). `scratch` is reused between calls so the hot loop does not allocate.
+///
+/// ```
+/// use num_complex::Complex64;
+/// use stackwise::optics::{solve, Side, StackAt};
+/// let glass = Complex64::new(1.52, 0.0);
+/// let stack = StackAt {
+///     incident: Complex64::new(1.0, 0.0), substrate: glass, exit: Complex64::new(1.0, 0.0),
+///     materials: &[Complex64::new(1.38, 0.0)], layers: &[(0, 550.0 / (4.0 * 1.38))],
+///     substrate_mm: None,
+/// };
+/// let r = solve(&stack, 550.0, 0.0, Side::Front, &mut Vec::new());
+/// // Single quarter-wave layer: R = ((n0 ns − n1²)/(n0 ns + n1²))² (Macleod, ch. 3)
+/// assert!((r.r() - 0.012600790215).abs() < 1e-10);
+/// ```
+pub fn solve(
+    stack: &StackAt<'_>,
+    wavelength_nm: f64,
+    aoi_rad: f64,
+    side: Side,
+    scratch: &mut Vec<Tilted>,
+) -> Response {
+    let real = |n: Complex64| Complex64::new(n.re, 0.0);
+    // The medium the light starts in fixes the Snell invariant.
+    let from = match (side, stack.substrate_mm) {
+        (Side::Front, _) => stack.incident,
+        (Side::Back, Some(_)) => stack.exit,
+        (Side::Back, None) => stack.substrate,
+    };
+    let snell = from.re * aoi_rad.sin();
+    scratch.clear();
+    scratch.extend(stack.materials.iter().map(|&n| Tilted::new(n, snell)));
+    let mats: &[Tilted] = scratch;
+    let forward = || stack.layers.iter().map(|&(m, d)| (&mats[m], d));
+    let backward = || stack.layers.iter().rev().map(|&(m, d)| (&mats[m], d));
+    let inc = Tilted::new(real(stack.incident), snell);
+
+    let Some(substrate_mm) = stack.substrate_mm else {
+        let c = match side {
+            Side::Front => coherent(
+                &inc,
+                forward(),
+                &Tilted::new(stack.substrate, snell),
+                wavelength_nm,
+            ),
+            Side::Back => coherent(
+                &Tilted::new(real(stack.substrate), snell),
+                backward(),
+                &Tilted::new(stack.incident, snell),
+                wavelength_nm,
+            ),
+        };
+        return c.response();
+    };
+
+    let sub_real = Tilted::new(real(stack.substrate), snell);
+    let exit = Tilted::new(stack.exit, snell);
+    let internal = thick::internal_transmittance(
+        Tilted::new(stack.substrate, snell).q,
+        substrate_mm * 1e6,
+        wavelength_nm,
+    );
+    let none = std::iter::empty();
+    // The coating seen from inside the substrate, towards the incident medium.
+    let coat_back = coherent(
+        &sub_real,
+        backward(),
+        &Tilted::new(stack.incident, snell),
+        wavelength_nm,
+    );
+    // The bare back surface seen from inside the substrate.
+    let back_surface = coherent(&sub_real, none.clone(), &exit, wavelength_nm);
+    let (coating, outcome) = match side {
+        Side::Front => {
+            let coat_front = coherent(&inc, forward(), &sub_real, wavelength_nm);
+            let sides = ThickSides {
+                coating_in: coat_front,
+                coating_inside: coat_back,
+                back_inside: back_surface,
+                internal,
+            };
+            (coat_front, combine_front(&sides))
+        }
+        Side::Back => {
+            let exit_in = Tilted::new(real(stack.exit), snell);
+            let back_from_exit = coherent(&exit_in, none, &sub_real, wavelength_nm);
+            let sides = ThickSides {
+                coating_in: back_from_exit,
+                coating_inside: coat_back,
+                back_inside: back_surface,
+                internal,
+            };
+            (coat_back, combine_back(&sides))
+        }
+    };
+    let [(r_s, t_s, a_s), (r_p, t_p, a_p)] = outcome;
+    Response {
+        r_s,
+        r_p,
+        t_s,
+        t_p,
+        a_s,
+        a_p,
+        amp_r_s: coating.s.r,
+        amp_r_p: coating.p.r,
+        amp_t_s: coating.s.t,
+        amp_t_p: coating.p.t,
+    }
+}

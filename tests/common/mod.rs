@@ -1,0 +1,84 @@
+//! Helpers shared by the integration tests.
+
+#![allow(dead_code, reason = "each test file uses a different subset")]
+
+use num_complex::Complex64;
+use stackwise::optics::{Response, Side, StackAt, solve};
+
+/// A real index.
+pub fn re(n: f64) -> Complex64 {
+    Complex64::new(n, 0.0)
+}
+
+/// Solves incident | layers (substrate side first) | substrate, semi-infinite substrate.
+pub fn stack(
+    incident: Complex64,
+    layers: &[(Complex64, f64)],
+    substrate: Complex64,
+    wavelength_nm: f64,
+    aoi_deg: f64,
+) -> Response {
+    stack_side(
+        incident,
+        layers,
+        substrate,
+        wavelength_nm,
+        aoi_deg,
+        Side::Front,
+    )
+}
+
+/// As [`stack`], from a chosen side (Back = from inside the substrate, angle in the substrate).
+pub fn stack_side(
+    incident: Complex64,
+    layers: &[(Complex64, f64)],
+    substrate: Complex64,
+    wavelength_nm: f64,
+    aoi_deg: f64,
+    side: Side,
+) -> Response {
+    let materials: Vec<Complex64> = layers.iter().map(|l| l.0).collect();
+    let idx: Vec<(usize, f64)> = layers.iter().enumerate().map(|(i, l)| (i, l.1)).collect();
+    let s = StackAt {
+        incident,
+        substrate,
+        exit: re(1.0),
+        materials: &materials,
+        layers: &idx,
+        substrate_mm: None,
+    };
+    solve(
+        &s,
+        wavelength_nm,
+        aoi_deg.to_radians(),
+        side,
+        &mut Vec::new(),
+    )
+}
+
+/// Quarter-wave thickness (nm) of index n at λ0: d = λ0 / (4 n).
+pub fn qw(n: f64, lambda0_nm: f64) -> f64 {
+    lambda0_nm / (4.0 * n)
+}
+
+/// (HL)^pairs H (or without the last H) written from the air side, returned in deposition
+/// order (substrate first) as the solver wants.
+pub fn qw_stack(
+    nh: f64,
+    nl: f64,
+    pairs: usize,
+    extra_h: bool,
+    lambda0: f64,
+) -> Vec<(Complex64, f64)> {
+    // From the air side: H L H L ... (H). Reverse for deposition order.
+    let mut from_air = Vec::new();
+    for _ in 0..pairs {
+        from_air.push((re(nh), qw(nh, lambda0)));
+        from_air.push((re(nl), qw(nl, lambda0)));
+    }
+    if extra_h {
+        from_air.push((re(nh), qw(nh, lambda0)));
+    }
+    from_air.reverse();
+    from_air
+}
