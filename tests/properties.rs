@@ -1,0 +1,196 @@
+//! Properties that hold for every stack, on random absorbing stacks at oblique incidence, and
+//! an independent algorithm (the recursive Airy/Rouard summation of interface coefficients)
+//! that must agree with the characteristic-matrix solver.
+
+mod common;
+
+use approx::assert_relative_eq;
+use common::{re, stack, stack_side};
+use num_complex::Complex64;
+use proptest::prelude::*;
+use stackwise::optics::{Side, StackAt, Tilted, solve};
+
+/// Recursive reflection/transmission (Rouard's method), written independently of the matrix
+/// code: starting at the substrate, each layer j between the medium above (a) and its own
+/// medium combines the interface coefficients r_aj, t_aj with the result below it:
+/// r = (r_aj + r_below e^{2iδ}) / (1 + r_aj r_below e^{2iδ}),
+/// t = t_aj t_below e^{iδ} / (1 + r_aj r_below e^{2iδ}),
+/// with admittance-form interface coefficients r_ab = (η_a − η_b)/(η_a + η_b) and
+/// tangential-field t_ab = 2η_a/(η_a + η_b). Returns (r, T) for s and p.
+fn rouard(
+    incident: f64,
+    layers: &[(Complex64, f64)],
+    substrate: Complex64,
+    wl: f64,
+    aoi_deg: f64,
+) -> [(Complex64, f64); 2] {
+    let snell = incident * aoi_deg.to_radians().sin();
+    let k0 = std::f64::consts::TAU / wl;
+    let media: Vec<Tilted> = std::iter::once(Tilted::new(re(incident), snell))
+        .chain(layers.iter().rev().map(|l| Tilted::new(l.0, snell)))
+        .chain(std::iter::once(Tilted::new(substrate, snell)))
+        .collect();
+    // media[0] = incident, media[1..=n] = layers from the incident side, media[n+1] = substrate
+    let n = layers.len();
+    let mut out = [(Complex64::default(), 0.0); 2];
+    for (pol, o) in out.iter_mut().enumerate() {
+        let eta = |m: &Tilted| if pol == 0 { m.eta_s } else { m.eta_p };
+        let (ea, eb) = (eta(&media[n]), eta(&media[n + 1]));
+        let mut r = (ea - eb) / (ea + eb);
+        let mut t = 2.0 * ea / (ea + eb);
+        for j in (1..=n).rev() {
+            let d = layers[n - j].1;
+            let phase = Complex64::i() * media[j].q * k0 * d;
+            let (e1, e2) = (phase.exp(), (2.0 * phase).exp());
+            let (ea, eb) = (eta(&media[j - 1]), eta(&media[j]));
+            let r_aj = (ea - eb) / (ea + eb);
+            let t_aj = 2.0 * ea / (ea + eb);
+            let den = 1.0 + r_aj * r * e2;
+            t = t_aj * t * e1 / den;
+            r = (r_aj + r * e2) / den;
+        }
+        let big_t = eta(&media[n + 1]).re / eta(&media[0]).re * t.norm_sqr();
+        *o = (r, big_t);
+    }
+    out
+}
+
+fn index() -> impl Strategy<Value = Complex64> {
+    prop_oneof![
+        (1.3f64..2.6).prop_map(re),
+        (1.3f64..4.5, 0.0f64..0.5).prop_map(|(n, k)| Complex64::new(n, k)),
+        (0.03f64..2.0, 1.5f64..8.0).prop_map(|(n, k)| Complex64::new(n, k)),
+    ]
+}
+
+fn layers(max: usize) -> impl Strategy<Value = Vec<(Complex64, f64)>> {
+    prop::collection::vec((index(), 0.0f64..400.0), 0..max)
+}
+
+fn lossless_layers(max: usize) -> impl Strategy<Value = Vec<(Complex64, f64)>> {
+    prop::collection::vec(((1.3f64..2.6).prop_map(re), 0.0f64..400.0), 0..max)
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 96, ..ProptestConfig::default() })]
+
+    #[test]
+    fn energy_is_conserved(ls in layers(12), sub in 1.4f64..1.9, wl in 300.0f64..2000.0, aoi in 0.0f64..85.0) {
+        let r = stack(re(1.0), &ls, re(sub), wl, aoi);
+        prop_assert!((r.r_s + r.t_s + r.a_s - 1.0).abs() < 1e-12, "s: {r:?}");
+        prop_assert!((r.r_p + r.t_p + r.a_p - 1.0).abs() < 1e-12, "p: {r:?}");
+        prop_assert!(r.r_s >= 0.0 && r.t_s >= 0.0 && r.a_s > -1e-12);
+        prop_assert!(r.r_p >= 0.0 && r.t_p >= 0.0 && r.a_p > -1e-12);
+    }
+
+    #[test]
+    fn lossless_stacks_absorb_nothing(ls in lossless_layers(20), sub in 1.4f64..1.9, wl in 300.0f64..2000.0, aoi in 0.0f64..85.0) {
+        let r = stack(re(1.0), &ls, re(sub), wl, aoi);
+        prop_assert!(r.a_s.abs() < 1e-12 && r.a_p.abs() < 1e-12, "{r:?}");
+    }
+
+    #[test]
+    fn transmittance_is_the_same_from_both_sides(ls in layers(10), sub in 1.4f64..1.9, wl in 300.0f64..2000.0, aoi in 0.0f64..80.0) {
+        let f = stack(re(1.0), &ls, re(sub), wl, aoi);
+        let inside = (aoi.to_radians().sin() / sub).asin().to_degrees();
+        let b = stack_side(re(1.0), &ls, re(sub), wl, inside, Side::Back);
+        prop_assert!((f.t_s - b.t_s).abs() < 1e-12 && (f.t_p - b.t_p).abs() < 1e-12, "{f:?} {b:?}");
+    }
+
+    #[test]
+    fn a_zero_thickness_layer_is_no_layer(ls in layers(8), extra in index(), at in 0usize..9, wl in 300.0f64..2000.0, aoi in 0.0f64..85.0) {
+        let mut with = ls.clone();
+        with.insert(at.min(ls.len()), (extra, 0.0));
+        let a = stack(re(1.0), &ls, re(1.52), wl, aoi);
+        let b = stack(re(1.0), &with, re(1.52), wl, aoi);
+        prop_assert!((a.r_s - b.r_s).abs() < 1e-13 && (a.r_p - b.r_p).abs() < 1e-13);
+        prop_assert!((a.t_s - b.t_s).abs() < 1e-13 && (a.t_p - b.t_p).abs() < 1e-13);
+    }
+
+    #[test]
+    fn splitting_a_layer_changes_nothing(ls in layers(8).prop_filter("need a layer", |l| !l.is_empty()), at in 0usize..8, frac in 0.0f64..1.0, wl in 300.0f64..2000.0, aoi in 0.0f64..85.0) {
+        let i = at % ls.len();
+        let (n, d) = ls[i];
+        let mut split = ls.clone();
+        split[i] = (n, d * frac);
+        split.insert(i + 1, (n, d * (1.0 - frac)));
+        let a = stack(re(1.0), &ls, re(1.52), wl, aoi);
+        let b = stack(re(1.0), &split, re(1.52), wl, aoi);
+        prop_assert!((a.amp_r_s - b.amp_r_s).norm() < 1e-12 && (a.amp_r_p - b.amp_r_p).norm() < 1e-12);
+        prop_assert!((a.t_s - b.t_s).abs() < 1e-12 && (a.t_p - b.t_p).abs() < 1e-12);
+    }
+
+    #[test]
+    fn recursive_method_agrees(ls in layers(12), sub in index(), inc in 1.0f64..1.8, wl in 300.0f64..2000.0, aoi in 0.0f64..85.0) {
+        let r = stack(re(inc), &ls, sub, wl, aoi);
+        let [(rs, ts), (rp, tp)] = rouard(inc, &ls, sub, wl, aoi);
+        prop_assert!((r.amp_r_s - rs).norm() < 1e-12, "r_s {} vs {}", r.amp_r_s, rs);
+        prop_assert!((r.amp_r_p - rp).norm() < 1e-12, "r_p {} vs {}", r.amp_r_p, rp);
+        prop_assert!((r.t_s - ts).abs() < 1e-12, "T_s {} vs {}", r.t_s, ts);
+        prop_assert!((r.t_p - tp).abs() < 1e-12, "T_p {} vs {}", r.t_p, tp);
+    }
+}
+
+/// A design on a thick substrate, solved through the public entry point.
+fn thick(
+    layers: &[(Complex64, f64)],
+    substrate: Complex64,
+    mm: f64,
+    wl: f64,
+    aoi: f64,
+    side: Side,
+) -> stackwise::optics::Response {
+    let mats: Vec<Complex64> = layers.iter().map(|l| l.0).collect();
+    let idx: Vec<(usize, f64)> = layers.iter().enumerate().map(|(i, l)| (i, l.1)).collect();
+    let s = StackAt {
+        incident: re(1.0),
+        substrate,
+        exit: re(1.0),
+        materials: &mats,
+        layers: &idx,
+        substrate_mm: Some(mm),
+    };
+    solve(&s, wl, aoi.to_radians(), side, &mut Vec::new())
+}
+
+#[test]
+fn bare_thick_slab_adds_both_surfaces_by_intensity() {
+    // Incoherent slab, both faces bare: the geometric series of internal reflections gives
+    // R = R1 + (1 − R1)² R1 / (1 − R1²) = 2 R1 / (1 + R1) and T = (1 − R1)/(1 + R1), with
+    // R1 = ((n − 1)/(n + 1))² = 0.04 for n = 1.5 (closed form, derived from Fresnel's R1).
+    let r = thick(&[], re(1.5), 2.0, 550.0, 0.0, Side::Front);
+    assert_relative_eq!(r.r(), 2.0 * 0.04 / 1.04, epsilon = 1e-15);
+    assert_relative_eq!(r.t(), 0.96 / 1.04, epsilon = 1e-15);
+    // Absorbing slab: τ = exp(−4π k d / λ); T = (1 − R1)² τ / (1 − R1² τ²).
+    let k = 2e-7;
+    let tau = (-4.0 * std::f64::consts::PI * k * 1e6 / 550.0).exp();
+    let r = thick(&[], Complex64::new(1.5, k), 1.0, 550.0, 0.0, Side::Front);
+    assert_relative_eq!(
+        r.t(),
+        0.96 * 0.96 * tau / (1.0 - 0.0016 * tau * tau),
+        epsilon = 1e-14
+    );
+    assert_relative_eq!(r.r() + r.t() + r.a(), 1.0, epsilon = 1e-15);
+}
+
+#[test]
+fn coated_thick_substrate_from_both_sides() {
+    // A quarter-wave MgF2-like layer (1.38) on a 1 mm slab of 1.52 at 20°: from the front the
+    // coated face reflects less than the bare back face adds; from behind, the same
+    // transmittance (reciprocity of each part) and a different reflectance.
+    let layers = [(re(1.38), 550.0 / (4.0 * 1.38))];
+    let f = thick(&layers, re(1.52), 1.0, 550.0, 20.0, Side::Front);
+    let b = thick(&layers, re(1.52), 1.0, 550.0, 20.0, Side::Back);
+    assert_relative_eq!(f.t_s, b.t_s, epsilon = 1e-14);
+    assert_relative_eq!(f.t_p, b.t_p, epsilon = 1e-14);
+    assert_relative_eq!(f.r_s + f.t_s, 1.0, epsilon = 1e-14);
+    assert_relative_eq!(b.r_p + b.t_p, 1.0, epsilon = 1e-14);
+    // With both faces the coated one alone: R_total > R_coated (the back face adds ≈ 4 %).
+    let coated = stack(re(1.0), &layers, re(1.52), 550.0, 20.0);
+    assert!(
+        f.r() > coated.r() + 0.03,
+        "back face must add reflection: {} vs {}",
+        f.r(),
+        coated.r()
+    );
+}
