@@ -82,7 +82,12 @@ impl Material {
     /// A user material with no stated range or source.
     #[must_use]
     pub fn user(name: &str, model: Model) -> Self {
-        Self { name: name.to_owned(), model, range_nm: None, source: String::new() }
+        Self {
+            name: name.to_owned(),
+            model,
+            range_nm: None,
+            source: String::new(),
+        }
     }
 
     /// Checks the model's coefficients and the stated range.
@@ -92,7 +97,9 @@ impl Material {
         {
             return Err(MaterialError::BadModel {
                 name: self.name.clone(),
-                what: format!("valid range {lo}–{hi} nm is not an increasing pair of positive numbers"),
+                what: format!(
+                    "valid range {lo}–{hi} nm is not an increasing pair of positive numbers"
+                ),
             });
         }
         self.model.validate(&self.name)
@@ -141,11 +148,19 @@ impl Material {
     #[must_use]
     pub fn range_warning(&self, wavelengths_nm: &[f64]) -> Option<RangeWarning> {
         let (lo, hi) = self.valid_range_nm();
-        let mut outside = wavelengths_nm.iter().copied().filter(|w| !(lo..=hi).contains(w));
+        let mut outside = wavelengths_nm
+            .iter()
+            .copied()
+            .filter(|w| !(lo..=hi).contains(w));
         let first = outside.next()?;
-        let (from_nm, to_nm) =
-            outside.fold((first, first), |(a, b), w| (a.min(w), b.max(w)));
-        Some(RangeWarning { material: self.name.clone(), from_nm, to_nm, min_nm: lo, max_nm: hi })
+        let (from_nm, to_nm) = outside.fold((first, first), |(a, b), w| (a.min(w), b.max(w)));
+        Some(RangeWarning {
+            material: self.name.clone(),
+            from_nm,
+            to_nm,
+            min_nm: lo,
+            max_nm: hi,
+        })
     }
 }
 
@@ -179,7 +194,11 @@ impl fmt::Display for RangeWarning {
 }
 
 fn fmt_nm(x: f64) -> String {
-    if x.is_infinite() { "∞".into() } else { format!("{}", (x * 1000.0).round() / 1000.0) }
+    if x.is_infinite() {
+        "∞".into()
+    } else {
+        format!("{}", (x * 1000.0).round() / 1000.0)
+    }
 }
 
 /// Resolves material names: a design's own materials first, then the built-in library.
@@ -208,7 +227,8 @@ impl<'a> Catalog<'a> {
             .find(|n| n.eq_ignore_ascii_case(name))
             .or_else(|| {
                 let lower = name.to_lowercase();
-                self.names().find(|n| !lower.is_empty() && n.to_lowercase().starts_with(&lower))
+                self.names()
+                    .find(|n| !lower.is_empty() && n.to_lowercase().starts_with(&lower))
             })
             .map_or_else(
                 || {
@@ -218,16 +238,20 @@ impl<'a> Catalog<'a> {
                 },
                 |n| format!("; did you mean {n:?}?"),
             );
-        Err(MaterialError::Unknown { name: name.to_owned(), hint })
+        Err(MaterialError::Unknown {
+            name: name.to_owned(),
+            hint,
+        })
     }
 
     /// Every name the catalogue knows: the user's first, then the built-ins.
     pub fn names(&self) -> impl Iterator<Item = &'a str> {
         let user = self.user;
-        user.iter()
-            .map(|m| m.name.as_str())
-            .chain(builtin().iter().map(|m| m.name.as_str()).filter(move |n| {
-                !user.iter().any(|u| u.name == *n)
-            }))
+        user.iter().map(|m| m.name.as_str()).chain(
+            builtin()
+                .iter()
+                .map(|m| m.name.as_str())
+                .filter(move |n| !user.iter().any(|u| u.name == *n)),
+        )
     }
 }

@@ -94,7 +94,10 @@ pub enum Model {
     },
 }
 
-#[expect(clippy::trivially_copy_pass_by_ref, reason = "serde's skip_serializing_if signature")]
+#[expect(
+    clippy::trivially_copy_pass_by_ref,
+    reason = "serde's skip_serializing_if signature"
+)]
 fn is_zero(x: &f64) -> bool {
     *x == 0.0
 }
@@ -147,7 +150,10 @@ impl Model {
 
     /// Checks the coefficients once, so evaluation can stay branch-free.
     pub fn validate(&self, name: &str) -> Result<(), MaterialError> {
-        let bad = |what: String| MaterialError::BadModel { name: name.to_owned(), what };
+        let bad = |what: String| MaterialError::BadModel {
+            name: name.to_owned(),
+            what,
+        };
         let all_finite = |xs: &[f64]| xs.iter().all(|x| x.is_finite());
         match self {
             Model::Constant { n, k } => {
@@ -182,7 +188,12 @@ impl Model {
                 n.validate(name)?;
                 check_rows(k.iter().map(|r| (r.0, 1.0, r.1)), name)?;
             }
-            Model::LorentzDrude { plasma_ev, f0, gamma0_ev, oscillators } => {
+            Model::LorentzDrude {
+                plasma_ev,
+                f0,
+                gamma0_ev,
+                oscillators,
+            } => {
                 let mut xs = vec![*plasma_ev, *f0, *gamma0_ev];
                 for o in oscillators {
                     xs.extend([o.f, o.gamma_ev, o.omega_ev]);
@@ -221,14 +232,20 @@ impl Model {
                 let re = n.index_at(wavelength_nm).re;
                 Complex64::new(re, interp(k, wavelength_nm, |r| r.0, |r| r.1))
             }
-            Model::LorentzDrude { plasma_ev, f0, gamma0_ev, oscillators } => {
+            Model::LorentzDrude {
+                plasma_ev,
+                f0,
+                gamma0_ev,
+                oscillators,
+            } => {
                 let w = EV_UM / um;
                 let wp2 = plasma_ev * plasma_ev;
                 let i = Complex64::i();
                 let mut eps = Complex64::new(1.0, 0.0) - f0 * wp2 / (w * (w + i * gamma0_ev));
                 for o in oscillators {
                     eps += o.f * wp2
-                        / (Complex64::new(o.omega_ev * o.omega_ev - w * w, 0.0) - i * w * o.gamma_ev);
+                        / (Complex64::new(o.omega_ev * o.omega_ev - w * w, 0.0)
+                            - i * w * o.gamma_ev);
                 }
                 let mut n = eps.sqrt();
                 if n.im < 0.0 {
@@ -243,27 +260,40 @@ impl Model {
 /// √(n²) for a lossless formula; a negative n² (inside an absorption band the formula does not
 /// model) becomes NaN so the caller reports it.
 fn real_sqrt(n2: f64) -> Complex64 {
-    if n2 > 0.0 { Complex64::new(n2.sqrt(), 0.0) } else { Complex64::new(f64::NAN, 0.0) }
+    if n2 > 0.0 {
+        Complex64::new(n2.sqrt(), 0.0)
+    } else {
+        Complex64::new(f64::NAN, 0.0)
+    }
 }
 
 fn check_rows(
     rows: impl Iterator<Item = (f64, f64, f64)>,
     name: &str,
 ) -> Result<(), MaterialError> {
-    let bad = |what: String| MaterialError::BadModel { name: name.to_owned(), what };
+    let bad = |what: String| MaterialError::BadModel {
+        name: name.to_owned(),
+        what,
+    };
     let mut prev: Option<f64> = None;
     let mut count = 0;
     for (i, (wl, n, k)) in rows.enumerate() {
         count += 1;
         let row = i + 1;
         if !(wl.is_finite() && wl > 0.0) {
-            return Err(bad(format!("row {row}: wavelength must be a positive number, got {wl}")));
+            return Err(bad(format!(
+                "row {row}: wavelength must be a positive number, got {wl}"
+            )));
         }
         if !(n.is_finite() && n > 0.0) {
-            return Err(bad(format!("row {row} ({wl} nm): n must be positive, got {n}")));
+            return Err(bad(format!(
+                "row {row} ({wl} nm): n must be positive, got {n}"
+            )));
         }
         if !(k.is_finite() && k >= 0.0) {
-            return Err(bad(format!("row {row} ({wl} nm): k must be zero or positive, got {k}")));
+            return Err(bad(format!(
+                "row {row} ({wl} nm): k must be zero or positive, got {k}"
+            )));
         }
         if let Some(p) = prev
             && wl <= p
@@ -287,7 +317,9 @@ mod tests {
 
     #[test]
     fn table_interpolates_linearly_and_holds_ends() {
-        let m = Model::Table { rows: vec![(400.0, 2.0, 0.1), (600.0, 1.0, 0.3)] };
+        let m = Model::Table {
+            rows: vec![(400.0, 2.0, 0.1), (600.0, 1.0, 0.3)],
+        };
         let n = m.index_at(500.0);
         assert_relative_eq!(n.re, 1.5, epsilon = 1e-15);
         assert_relative_eq!(n.im, 0.2, epsilon = 1e-15);
@@ -299,7 +331,9 @@ mod tests {
 
     #[test]
     fn unsorted_table_is_rejected_with_the_row() {
-        let m = Model::Table { rows: vec![(400.0, 2.0, 0.0), (300.0, 1.0, 0.0)] };
+        let m = Model::Table {
+            rows: vec![(400.0, 2.0, 0.0), (300.0, 1.0, 0.0)],
+        };
         let e = m.validate("X").unwrap_err().to_string();
         assert!(e.contains("row 2") && e.contains("300"), "{e}");
     }
@@ -308,8 +342,18 @@ mod tests {
     fn sellmeier_pole_gives_nan_not_a_number_silently() {
         // n² = 1 + 1·λ²/(λ² − 0.25) is negative for 0.125 < λ² < 0.25 µm² (354–500 nm):
         // no real index there. At 400 nm, λ² = 0.16 µm² and n² = 1 − 0.16/0.09 < 0.
-        let m = Model::Sellmeier { a: 0.0, b: vec![1.0], c: vec![0.25] };
-        assert!(m.index_at(400.0).re.is_nan(), "a negative n² must not turn into a number");
-        assert!(m.index_at(300.0).re.is_finite(), "below the band n² is positive again");
+        let m = Model::Sellmeier {
+            a: 0.0,
+            b: vec![1.0],
+            c: vec![0.25],
+        };
+        assert!(
+            m.index_at(400.0).re.is_nan(),
+            "a negative n² must not turn into a number"
+        );
+        assert!(
+            m.index_at(300.0).re.is_finite(),
+            "below the band n² is positive again"
+        );
     }
 }
