@@ -230,12 +230,14 @@ impl<'a> Catalog<'a> {
                 self.names()
                     .find(|n| !lower.is_empty() && n.to_lowercase().starts_with(&lower))
             })
-            .map(|n| format!("; did you mean {n:?}?"))
-            .unwrap_or_else(|| {
-                "; `stackwise materials` lists the built-in ones, or define it in the design's \
-                 `materials` list"
-                    .into()
-            });
+            .map_or_else(
+                || {
+                    "; `stackwise materials` lists the built-in ones, or define it in the \
+                     design's `materials` list"
+                        .into()
+                },
+                |n| format!("; did you mean {n:?}?"),
+            );
         Err(MaterialError::Unknown {
             name: name.to_owned(),
             hint,

@@ -15,11 +15,11 @@ pub const EV_UM: f64 = 1.239_841_984;
 /// One Lorentz oscillator of a [`Model::LorentzDrude`] material.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct Oscillator {
-    /// Oscillator strength f_j (dimensionless).
+    /// Oscillator strength `f_j` (dimensionless).
     pub f: f64,
-    /// Damping Γ_j in eV.
+    /// Damping `Γ_j` in eV.
     pub gamma_ev: f64,
-    /// Resonance energy ω_j in eV.
+    /// Resonance energy `ω_j` in eV.
     pub omega_ev: f64,
 }
 
@@ -46,24 +46,24 @@ pub enum Model {
         #[serde(default)]
         c: f64,
     },
-    /// n² = 1 + a + Σ b_i λ²/(λ² − c_i) with λ in µm and c_i in µm²; k = 0.
+    /// `n² = 1 + a + Σ b_i λ²/(λ² − c_i)` with λ in µm and `c_i` in µm²; k = 0.
     Sellmeier {
         /// Extra constant added to 1 (0 for the classic form).
         #[serde(default, skip_serializing_if = "is_zero")]
         a: f64,
-        /// Strengths b_i.
+        /// Strengths `b_i`.
         b: Vec<f64>,
-        /// Resonance wavelengths squared, c_i in µm².
+        /// Resonance wavelengths squared, `c_i` in µm².
         c: Vec<f64>,
     },
-    /// n² = a + Σ b_i / (λ² − c_i) with λ in µm and c_i in µm²; k = 0.
-    /// (A pole at c_i = 0 gives a plain b/λ² term.)
+    /// `n² = a + Σ b_i / (λ² − c_i)` with λ in µm and `c_i` in µm²; k = 0.
+    /// (A pole at `c_i = 0` gives a plain b/λ² term.)
     Rational {
         /// Constant term (ε at infinite frequency).
         a: f64,
-        /// Numerators b_i (µm²).
+        /// Numerators `b_i` (µm²).
         b: Vec<f64>,
-        /// Pole positions c_i (µm²).
+        /// Pole positions `c_i` (µm²).
         c: Vec<f64>,
     },
     /// Rows of (wavelength nm, n, k), interpolated linearly in wavelength; the end values are
@@ -81,7 +81,7 @@ pub enum Model {
         k: Vec<(f64, f64)>,
     },
     /// Lorentz–Drude permittivity (the Rakić et al. 1998 form):
-    /// ε(ω) = 1 − f₀ωₚ²/(ω(ω + iΓ₀)) + Σ f_j ωₚ²/(ω_j² − ω² − iωΓ_j), ω in eV, N = √ε.
+    /// `ε(ω) = 1 − f₀ωₚ²/(ω(ω + iΓ₀)) + Σ f_j ωₚ²/(ω_j² − ω² − iωΓ_j)`, ω in eV, N = √ε.
     LorentzDrude {
         /// Plasma energy ωₚ in eV.
         plasma_ev: f64,
@@ -137,13 +137,9 @@ impl Model {
     pub fn table_span_nm(&self) -> Option<(f64, f64)> {
         match self {
             Model::Table { rows } => Some((rows.first()?.0, rows.last()?.0)),
-            Model::WithK { n, k } => {
-                let (lo, hi) = (k.first()?.0, k.last()?.0);
-                match n.table_span_nm() {
-                    Some((a, b)) => Some((lo.max(a), hi.min(b))),
-                    None => Some((lo, hi)),
-                }
-            }
+            // The k table's end values are held outside its rows; the material's stated
+            // range says where the pair is valid.
+            Model::WithK { n, .. } => n.table_span_nm(),
             _ => None,
         }
     }
@@ -340,15 +336,20 @@ mod tests {
 
     #[test]
     fn sellmeier_pole_gives_nan_not_a_number_silently() {
-        // n² = 1 + 1·λ²/(λ² − 0.25) is negative for 0 < λ² < 0.125 µm²: no real index.
+        // n² = 1 + 1·λ²/(λ² − 0.25) is negative for 0.125 < λ² < 0.25 µm² (354–500 nm):
+        // no real index there. At 400 nm, λ² = 0.16 µm² and n² = 1 − 0.16/0.09 < 0.
         let m = Model::Sellmeier {
             a: 0.0,
             b: vec![1.0],
             c: vec![0.25],
         };
         assert!(
-            m.index_at(300.0).re.is_nan(),
+            m.index_at(400.0).re.is_nan(),
             "a negative n² must not turn into a number"
+        );
+        assert!(
+            m.index_at(300.0).re.is_finite(),
+            "below the band n² is positive again"
         );
     }
 }
