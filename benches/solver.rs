@@ -1,1 +1,85 @@
-fn main() {}
+//! Solver speed: {10, 100, 250} layers × {1001, 10001} wavelengths × {0°, 45°}, with dispersive
+//! and absorbing materials, on one thread and on all cores. Throughput is reported in
+//! layer·wavelength elements (s and p together), so ns per element = 1 / throughput.
+
+use std::hint::black_box;
+use std::time::Duration;
+
+use criterion::{Criterion, Throughput, criterion_group, criterion_main};
+use stackwise::analysis::{spectrum, wavelengths_nm};
+use stackwise::design::ResolvedDesign;
+use stackwise::material::{Material, Model};
+use stackwise::optics::Side;
+
+/// A design of `layers` alternating layers: a dispersive, weakly absorbing high index (a table
+/// with k) and a Sellmeier low index, on a Sellmeier glass. Thicknesses vary per layer
+/// (seeded), as in an optimised design.
+fn design(layers: usize) -> ResolvedDesign {
+    let high = Material::user(
+        "H",
+        Model::Table {
+            rows: (0..=200)
+                .map(|i| {
+                    let wl = 300.0 + 5.0 * f64::from(i);
+                    (wl, 2.2 + 30_000.0 / (wl * wl), 2e-3 * 400.0 / wl)
+                })
+                .collect(),
+        },
+    );
+    let low = Material::user(
+        "L",
+        Model::Sellmeier { a: 0.0, b: vec![0.696_166_3, 0.407_942_6], c: vec![0.004_679_15, 0.013_512_06] },
+    );
+    let glass = Material::user(
+        "G",
+        Model::Sellmeier { a: 0.0, b: vec![1.039_612_12, 0.231_792_344], c: vec![0.006_000_698_67, 0.020_017_914_4] },
+    );
+    let air = Material::user("Air", Model::Constant { n: 1.0, k: 0.0 });
+    let mut seed = 0x2545_f491_4f6c_dd1d_u64;
+    let layers = (0..layers)
+        .map(|i| {
+            seed ^= seed << 13;
+            seed ^= seed >> 7;
+            seed ^= seed << 17;
+            (i % 2, 20.0 + (seed % 2000) as f64 / 10.0)
+        })
+        .collect();
+    ResolvedDesign {
+        incident: air.clone(),
+        substrate: glass,
+        exit: air,
+        substrate_mm: None,
+        materials: vec![high, low],
+        layers,
+    }
+}
+
+fn solver(c: &mut Criterion) {
+    let one = rayon::ThreadPoolBuilder::new().num_threads(1).build().expect("a thread pool");
+    let all = rayon::ThreadPoolBuilder::new().build().expect("a thread pool");
+    for layers in [10, 100, 250] {
+        let d = design(layers);
+        for points in [1001, 10001] {
+            let wl = wavelengths_nm(400.0, 1400.0, 1000.0 / (points - 1) as f64).expect("grid");
+            assert_eq!(wl.len(), points, "grid size");
+            let mut g = c.benchmark_group(format!("tmm/layers={layers}/wl={points}"));
+            g.throughput(Throughput::Elements((layers * points) as u64));
+            g.sample_size(10).warm_up_time(Duration::from_millis(300));
+            g.measurement_time(Duration::from_secs(if layers * points > 500_000 { 3 } else { 1 }));
+            for aoi in [0.0, 45.0] {
+                g.bench_function(format!("aoi={aoi}/threads=1"), |b| {
+                    b.iter(|| one.install(|| spectrum(black_box(&d), &wl, aoi, Side::Front)))
+                });
+                if points == 10001 {
+                    g.bench_function(format!("aoi={aoi}/threads={}", all.current_num_threads()), |b| {
+                        b.iter(|| all.install(|| spectrum(black_box(&d), &wl, aoi, Side::Front)))
+                    });
+                }
+            }
+            g.finish();
+        }
+    }
+}
+
+criterion_group!(benches, solver);
+criterion_main!(benches);

@@ -1,8 +1,14 @@
 //! Stackwise: design and analysis of optical thin-film coatings.
 //!
 //! The physics core ([`optics`], [`material`]) knows nothing of files or screens; [`design`]
-//! holds the document and its file format; [`analysis`] turns a design into spectra; the
-//! command line ([`cli`]) and the window (`gui`) sit on top of the same functions.
+//! holds the document and its file format; [`analysis`] turns a design into spectra;
+//! [`export`] writes results; the command line ([`cli`]) and the window ([`gui`]) sit on top
+//! of the same functions, so a number the window shows is the number the CLI prints.
 
+pub mod analysis;
+pub mod cli;
+pub mod design;
+pub mod export;
+pub mod gui;
 pub mod material;
 pub mod optics;

@@ -1,0 +1,12 @@
+//! Analyses of a design: spectra over wavelength and scans over the angle of incidence.
+//!
+//! The engine evaluates every material's index once per wavelength (not once per layer),
+//! then solves each wavelength or angle independently — in parallel for large sweeps — and
+//! hands back plain arrays ready to plot or write.
+
+mod sweep;
+
+pub use sweep::{
+    AngleScan, COLUMN_NAMES, Curves, PARALLEL_MIN_WORK, Spectrum, SweepError, Warning, angle_scan, angles_deg,
+    spectrum, wavelengths_nm,
+};

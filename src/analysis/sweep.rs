@@ -1,0 +1,404 @@
+//! Wavelength and angle sweeps over a resolved design.
+
+use std::fmt;
+
+use num_complex::Complex64;
+use rayon::prelude::*;
+
+use crate::design::ResolvedDesign;
+use crate::material::{Material, MaterialError, RangeWarning};
+use crate::optics::{Response, Side, StackAt, Tilted, solve};
+
+/// Sweeps with at least this many layer·point products run on all cores.
+pub const PARALLEL_MIN_WORK: usize = 50_000;
+
+/// Most points one sweep may have (a guard against a typo such as a 1e-6 nm step).
+const MAX_POINTS: usize = 2_000_000;
+
+/// What can go wrong when setting up or running a sweep.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[non_exhaustive]
+pub enum SweepError {
+    /// A range bound or step is not a finite number.
+    #[error("{what} must be a finite number, got {value}")]
+    NotFinite {
+        /// Which value.
+        what: &'static str,
+        /// The value given.
+        value: f64,
+    },
+    /// The range runs backwards or is empty.
+    #[error("the range {from} to {to} is empty or runs backwards; give a start below the end")]
+    Inverted {
+        /// Start.
+        from: f64,
+        /// End.
+        to: f64,
+    },
+    /// The step is zero or negative.
+    #[error("the step must be positive, got {step}")]
+    BadStep {
+        /// The step given.
+        step: f64,
+    },
+    /// Wavelengths must be positive.
+    #[error("wavelengths must be positive, got {wavelength_nm} nm")]
+    BadWavelength {
+        /// The wavelength given.
+        wavelength_nm: f64,
+    },
+    /// The angle of incidence is outside 0 ≤ θ < 90°.
+    #[error("angle of incidence {aoi_deg}° is outside 0° to below 90°")]
+    BadAngle {
+        /// The angle given.
+        aoi_deg: f64,
+    },
+    /// Too many points.
+    #[error("{points} points is more than the {MAX_POINTS} one sweep allows; use a larger step")]
+    TooManyPoints {
+        /// How many the range and step would give.
+        points: usize,
+    },
+    /// A material has no usable index somewhere in the sweep.
+    #[error(transparent)]
+    Material(#[from] MaterialError),
+}
+
+/// Something the user should know about a result that is still computed.
+#[derive(Clone, Debug, PartialEq)]
+#[non_exhaustive]
+pub enum Warning {
+    /// A material was evaluated outside its data.
+    Extrapolated(RangeWarning),
+    /// The incident medium absorbs; its k is ignored.
+    AbsorbingIncident {
+        /// Material name.
+        material: String,
+        /// Largest k met.
+        k: f64,
+    },
+}
+
+impl fmt::Display for Warning {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Warning::Extrapolated(w) => w.fmt(f),
+            Warning::AbsorbingIncident { material, k } => write!(
+                f,
+                "incident medium {material}: absorption (k up to {k:.3e}) is ignored; \
+                 the incident medium is treated as transparent"
+            ),
+        }
+    }
+}
+
+/// R, T, A for s, p and their mean, plus the coating's complex amplitudes, one entry per point.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct Curves {
+    /// Reflectance, s.
+    pub r_s: Vec<f64>,
+    /// Reflectance, p.
+    pub r_p: Vec<f64>,
+    /// Reflectance, mean of s and p.
+    pub r: Vec<f64>,
+    /// Transmittance, s.
+    pub t_s: Vec<f64>,
+    /// Transmittance, p.
+    pub t_p: Vec<f64>,
+    /// Transmittance, mean.
+    pub t: Vec<f64>,
+    /// Absorptance, s.
+    pub a_s: Vec<f64>,
+    /// Absorptance, p.
+    pub a_p: Vec<f64>,
+    /// Absorptance, mean.
+    pub a: Vec<f64>,
+    /// Complex reflection amplitude, s.
+    pub amp_r_s: Vec<Complex64>,
+    /// Complex reflection amplitude, p.
+    pub amp_r_p: Vec<Complex64>,
+    /// Complex transmission amplitude, s.
+    pub amp_t_s: Vec<Complex64>,
+    /// Complex transmission amplitude, p.
+    pub amp_t_p: Vec<Complex64>,
+}
+
+impl Curves {
+    fn from_responses(rs: &[Response]) -> Self {
+        let col = |f: fn(&Response) -> f64| rs.iter().map(f).collect::<Vec<_>>();
+        let cplx = |f: fn(&Response) -> Complex64| rs.iter().map(f).collect::<Vec<_>>();
+        Self {
+            r_s: col(|r| r.r_s),
+            r_p: col(|r| r.r_p),
+            r: col(Response::r),
+            t_s: col(|r| r.t_s),
+            t_p: col(|r| r.t_p),
+            t: col(Response::t),
+            a_s: col(|r| r.a_s),
+            a_p: col(|r| r.a_p),
+            a: col(Response::a),
+            amp_r_s: cplx(|r| r.amp_r_s),
+            amp_r_p: cplx(|r| r.amp_r_p),
+            amp_t_s: cplx(|r| r.amp_t_s),
+            amp_t_p: cplx(|r| r.amp_t_p),
+        }
+    }
+
+    /// Number of points.
+    #[must_use]
+    pub fn len(&self) -> usize {
+        self.r.len()
+    }
+
+    /// Whether there are no points.
+    #[must_use]
+    pub fn is_empty(&self) -> bool {
+        self.r.is_empty()
+    }
+
+    /// The nine intensity columns in the order R_s, R_p, R, T_s, T_p, T, A_s, A_p, A.
+    #[must_use]
+    pub fn columns(&self) -> [&[f64]; 9] {
+        [&self.r_s, &self.r_p, &self.r, &self.t_s, &self.t_p, &self.t, &self.a_s, &self.a_p, &self.a]
+    }
+}
+
+/// Names of [`Curves::columns`], as CSV headers.
+pub const COLUMN_NAMES: [&str; 9] = ["R_s", "R_p", "R", "T_s", "T_p", "T", "A_s", "A_p", "A"];
+
+/// A design's response over wavelength at one angle.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct Spectrum {
+    /// Wavelengths (nm).
+    pub wavelength_nm: Vec<f64>,
+    /// Angle of incidence (degrees, in the medium the light comes from).
+    pub aoi_deg: f64,
+    /// Side the light comes from.
+    pub side: Side,
+    /// The responses.
+    pub curves: Curves,
+    /// Things to tell the user (e.g. extrapolated materials).
+    pub warnings: Vec<Warning>,
+}
+
+/// A design's response over the angle of incidence at one wavelength.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct AngleScan {
+    /// Angles of incidence (degrees).
+    pub aoi_deg: Vec<f64>,
+    /// Wavelength (nm).
+    pub wavelength_nm: f64,
+    /// Side the light comes from.
+    pub side: Side,
+    /// The responses.
+    pub curves: Curves,
+    /// Things to tell the user.
+    pub warnings: Vec<Warning>,
+}
+
+/// Evenly spaced points from `from` to `to` inclusive (the last step may be short so `to` is
+/// always included), checked for sense.
+fn grid(from: f64, to: f64, step: f64) -> Result<Vec<f64>, SweepError> {
+    for (what, value) in [("range start", from), ("range end", to), ("step", step)] {
+        if !value.is_finite() {
+            return Err(SweepError::NotFinite { what, value });
+        }
+    }
+    if to < from {
+        return Err(SweepError::Inverted { from, to });
+    }
+    if step <= 0.0 {
+        return Err(SweepError::BadStep { step });
+    }
+    let span = to - from;
+    let n = (span / step * (1.0 + 1e-12)).floor();
+    if n >= MAX_POINTS as f64 {
+        return Err(SweepError::TooManyPoints { points: n as usize + 1 });
+    }
+    let n = n as usize;
+    let mut v: Vec<f64> = (0..=n).map(|i| from + step * i as f64).collect();
+    if let Some(last) = v.last_mut()
+        && (to - *last).abs() <= step * 1e-9
+    {
+        *last = to;
+    } else if (to - from) > 0.0 {
+        v.push(to);
+    }
+    Ok(v)
+}
+
+/// Wavelengths (nm) from `from_nm` to `to_nm` inclusive in steps of `step_nm`.
+///
+/// ```
+/// let w = stackwise::analysis::wavelengths_nm(400.0, 700.0, 100.0).unwrap();
+/// assert_eq!(w, vec![400.0, 500.0, 600.0, 700.0]);
+/// assert!(stackwise::analysis::wavelengths_nm(700.0, 400.0, 1.0).is_err());
+/// ```
+pub fn wavelengths_nm(from_nm: f64, to_nm: f64, step_nm: f64) -> Result<Vec<f64>, SweepError> {
+    let w = grid(from_nm, to_nm, step_nm)?;
+    if from_nm <= 0.0 {
+        return Err(SweepError::BadWavelength { wavelength_nm: from_nm });
+    }
+    Ok(w)
+}
+
+/// Angles (degrees) from `from_deg` to `to_deg` inclusive, each in 0 ≤ θ < 90.
+pub fn angles_deg(from_deg: f64, to_deg: f64, step_deg: f64) -> Result<Vec<f64>, SweepError> {
+    let a = grid(from_deg, to_deg, step_deg)?;
+    for &x in [from_deg, to_deg].iter() {
+        check_angle(x)?;
+    }
+    Ok(a)
+}
+
+fn check_angle(aoi_deg: f64) -> Result<(), SweepError> {
+    if aoi_deg.is_finite() && (0.0..90.0).contains(&aoi_deg) {
+        Ok(())
+    } else {
+        Err(SweepError::BadAngle { aoi_deg })
+    }
+}
+
+/// Every material the solver needs: layer materials first, then incident, substrate, exit.
+fn all_materials(d: &ResolvedDesign) -> Vec<&Material> {
+    d.materials.iter().chain([&d.incident, &d.substrate, &d.exit]).collect()
+}
+
+/// Indices of `mats` at each wavelength, row-major (wavelength, material).
+fn index_table(mats: &[&Material], wavelengths_nm: &[f64]) -> Result<Vec<Complex64>, SweepError> {
+    let mut out = Vec::with_capacity(mats.len() * wavelengths_nm.len());
+    for &w in wavelengths_nm {
+        if !(w.is_finite() && w > 0.0) {
+            return Err(SweepError::BadWavelength { wavelength_nm: w });
+        }
+        for m in mats {
+            out.push(m.index_at(w)?);
+        }
+    }
+    Ok(out)
+}
+
+fn warnings(d: &ResolvedDesign, wavelengths_nm: &[f64], indices: &[Complex64]) -> Vec<Warning> {
+    let mut out: Vec<Warning> = Vec::new();
+    let mut seen: Vec<&str> = Vec::new();
+    for m in all_materials(d) {
+        if seen.contains(&m.name.as_str()) {
+            continue;
+        }
+        seen.push(&m.name);
+        if let Some(w) = m.range_warning(wavelengths_nm) {
+            out.push(Warning::Extrapolated(w));
+        }
+    }
+    let width = d.materials.len() + 3;
+    let k = indices.chunks(width).map(|row| row[d.materials.len()].im).fold(0.0, f64::max);
+    if k > 0.0 {
+        out.push(Warning::AbsorbingIncident { material: d.incident.name.clone(), k });
+    }
+    out
+}
+
+/// Runs `solve_one(i, scratch)` for every point, on all cores when the work is large.
+fn run(
+    points: usize,
+    layers: usize,
+    solve_one: impl Fn(usize, &mut Vec<Tilted>) -> Response + Sync,
+) -> Vec<Response> {
+    let mut out = vec![Response::default(); points];
+    if points * layers.max(1) >= PARALLEL_MIN_WORK {
+        out.par_iter_mut()
+            .enumerate()
+            .with_min_len(64)
+            .for_each_init(Vec::new, |scratch, (i, r)| *r = solve_one(i, scratch));
+    } else {
+        let mut scratch = Vec::new();
+        for (i, r) in out.iter_mut().enumerate() {
+            *r = solve_one(i, &mut scratch);
+        }
+    }
+    out
+}
+
+fn stack_at<'a>(d: &'a ResolvedDesign, row: &'a [Complex64]) -> StackAt<'a> {
+    let nm = d.materials.len();
+    StackAt {
+        incident: row[nm],
+        substrate: row[nm + 1],
+        exit: row[nm + 2],
+        materials: &row[..nm],
+        layers: &d.layers,
+        substrate_mm: d.substrate_mm,
+    }
+}
+
+/// The design's response at each wavelength (nm), at `aoi_deg` in the medium the light comes
+/// from.
+pub fn spectrum(
+    d: &ResolvedDesign,
+    wavelengths_nm: &[f64],
+    aoi_deg: f64,
+    side: Side,
+) -> Result<Spectrum, SweepError> {
+    check_angle(aoi_deg)?;
+    let mats = all_materials(d);
+    let table = index_table(&mats, wavelengths_nm)?;
+    let width = mats.len();
+    let aoi = aoi_deg.to_radians();
+    let responses = run(wavelengths_nm.len(), d.layers.len(), |i, scratch| {
+        let row = &table[i * width..(i + 1) * width];
+        solve(&stack_at(d, row), wavelengths_nm[i], aoi, side, scratch)
+    });
+    Ok(Spectrum {
+        wavelength_nm: wavelengths_nm.to_vec(),
+        aoi_deg,
+        side,
+        curves: Curves::from_responses(&responses),
+        warnings: warnings(d, wavelengths_nm, &table),
+    })
+}
+
+/// The design's response at one wavelength over angles of incidence (degrees).
+pub fn angle_scan(
+    d: &ResolvedDesign,
+    wavelength_nm: f64,
+    aoi_deg: &[f64],
+    side: Side,
+) -> Result<AngleScan, SweepError> {
+    for &a in aoi_deg {
+        check_angle(a)?;
+    }
+    let mats = all_materials(d);
+    let table = index_table(&mats, &[wavelength_nm])?;
+    let responses = run(aoi_deg.len(), d.layers.len(), |i, scratch| {
+        solve(&stack_at(d, &table), wavelength_nm, aoi_deg[i].to_radians(), side, scratch)
+    });
+    Ok(AngleScan {
+        aoi_deg: aoi_deg.to_vec(),
+        wavelength_nm,
+        side,
+        curves: Curves::from_responses(&responses),
+        warnings: warnings(d, &[wavelength_nm], &table),
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn grid_includes_the_end_even_when_the_step_does_not_divide() {
+        assert_eq!(grid(0.0, 10.0, 4.0).unwrap(), vec![0.0, 4.0, 8.0, 10.0]);
+        assert_eq!(grid(5.0, 5.0, 1.0).unwrap(), vec![5.0]);
+        assert_eq!(grid(400.0, 700.0, 0.1).unwrap().len(), 3001);
+    }
+
+    #[test]
+    fn bad_ranges_name_the_problem() {
+        assert!(matches!(grid(1.0, 0.0, 1.0), Err(SweepError::Inverted { .. })));
+        assert!(matches!(grid(0.0, 1.0, 0.0), Err(SweepError::BadStep { .. })));
+        assert!(matches!(grid(0.0, f64::NAN, 1.0), Err(SweepError::NotFinite { .. })));
+        assert!(matches!(grid(0.0, 1e9, 1e-3), Err(SweepError::TooManyPoints { .. })));
+        assert!(matches!(angles_deg(0.0, 90.0, 1.0), Err(SweepError::BadAngle { .. })));
+        assert!(matches!(wavelengths_nm(0.0, 10.0, 1.0), Err(SweepError::BadWavelength { .. })));
+    }
+}

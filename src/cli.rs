@@ -1,0 +1,272 @@
+//! The command line: the same engine as the window, without a window.
+
+use std::fs::File;
+use std::io::{self, BufWriter, Write};
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+use anyhow::{Context as _, Result, bail};
+use clap::{Parser, Subcommand, ValueEnum};
+
+use crate::analysis::{self, Warning};
+use crate::design::{Design, file};
+use crate::export;
+use crate::material::{Catalog, builtin};
+use crate::optics::Side;
+
+/// Design and analyse optical thin-film coatings. With no command, opens the window.
+#[derive(Debug, Parser)]
+#[command(name = "stackwise", version, about, args_conflicts_with_subcommands = true)]
+pub struct Cli {
+    /// A design file to open in the window.
+    pub design: Option<PathBuf>,
+    /// What to do without a window.
+    #[command(subcommand)]
+    pub command: Option<Command>,
+}
+
+/// Which side the light comes from.
+#[derive(Clone, Copy, Debug, ValueEnum)]
+pub enum SideArg {
+    /// From the incident medium onto the coating.
+    Front,
+    /// From the exit medium through the substrate.
+    Back,
+}
+
+impl From<SideArg> for Side {
+    fn from(s: SideArg) -> Self {
+        match s {
+            SideArg::Front => Side::Front,
+            SideArg::Back => Side::Back,
+        }
+    }
+}
+
+/// Headless commands.
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// R, T, A over wavelength as CSV: wavelength_nm,R_s,R_p,R,T_s,T_p,T,A_s,A_p,A.
+    Spectrum {
+        /// The design file (.ron).
+        design: PathBuf,
+        /// First wavelength, nm [default: 0.7 × the reference wavelength].
+        #[arg(long)]
+        from: Option<f64>,
+        /// Last wavelength, nm [default: 1.5 × the reference wavelength].
+        #[arg(long)]
+        to: Option<f64>,
+        /// Wavelength step, nm [default: 400 steps over the range].
+        #[arg(long)]
+        step: Option<f64>,
+        /// Angle of incidence in degrees, in the medium the light comes from.
+        #[arg(long, default_value_t = 0.0)]
+        aoi: f64,
+        /// Side the light comes from.
+        #[arg(long, value_enum, default_value_t = SideArg::Front)]
+        side: SideArg,
+        /// Write the CSV here instead of standard output.
+        #[arg(long)]
+        out: Option<PathBuf>,
+    },
+    /// R, T, A over the angle of incidence as CSV: aoi_deg,R_s,R_p,R,T_s,T_p,T,A_s,A_p,A.
+    Angles {
+        /// The design file (.ron).
+        design: PathBuf,
+        /// Wavelength, nm.
+        #[arg(long)]
+        wavelength: f64,
+        /// First angle, degrees.
+        #[arg(long, default_value_t = 0.0)]
+        from: f64,
+        /// Last angle, degrees (below 90).
+        #[arg(long, default_value_t = 89.0)]
+        to: f64,
+        /// Angle step, degrees.
+        #[arg(long, default_value_t = 1.0)]
+        step: f64,
+        /// Side the light comes from.
+        #[arg(long, value_enum, default_value_t = SideArg::Front)]
+        side: SideArg,
+        /// Write the CSV here instead of standard output.
+        #[arg(long)]
+        out: Option<PathBuf>,
+    },
+    /// A material's n and k over wavelength as CSV: wavelength_nm,n,k.
+    Nk {
+        /// Material name (built-in, or defined in --design).
+        material: String,
+        /// First wavelength, nm [default: start of the material's data, or 300].
+        #[arg(long)]
+        from: Option<f64>,
+        /// Last wavelength, nm [default: end of the material's data, or 1100].
+        #[arg(long)]
+        to: Option<f64>,
+        /// Wavelength step, nm [default: 400 steps over the range].
+        #[arg(long)]
+        step: Option<f64>,
+        /// A design whose own materials may be named as well.
+        #[arg(long)]
+        design: Option<PathBuf>,
+    },
+    /// The built-in materials as CSV: name,model,min_nm,max_nm,source.
+    Materials,
+    /// The layer table of a design: material, nm, QWOT and optical thickness.
+    Info {
+        /// The design file (.ron).
+        design: PathBuf,
+    },
+}
+
+/// Parses the process arguments and runs; `open_window` is called when no command is given.
+pub fn main(open_window: impl FnOnce(Option<PathBuf>) -> Result<()>) -> ExitCode {
+    let cli = Cli::parse();
+    let result = match cli.command {
+        None => open_window(cli.design),
+        Some(cmd) => run(cmd, &mut io::stdout().lock(), &mut io::stderr().lock()),
+    };
+    match result {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(e) => {
+            let mut msg = format!("error: {e}");
+            for cause in e.chain().skip(1) {
+                msg.push_str(&format!("\n  caused by: {cause}"));
+            }
+            log::error!("{msg}");
+            // Standard error is the place for this; a failed write there has nowhere to go.
+            writeln!(io::stderr(), "{msg}").ok();
+            ExitCode::FAILURE
+        }
+    }
+}
+
+/// Loads and checks a design file, with the path in any error.
+pub fn load_design(path: &Path) -> Result<Design> {
+    let d = file::load(path)?;
+    d.validate().with_context(|| format!("in {}", path.display()))?;
+    Ok(d)
+}
+
+fn output(out: Option<&Path>, stdout: &mut dyn Write) -> Result<Box<dyn Write + '_>> {
+    Ok(match out {
+        Some(p) => Box::new(BufWriter::new(
+            File::create(p).with_context(|| format!("cannot create {}", p.display()))?,
+        )),
+        None => Box::new(stdout),
+    })
+}
+
+fn report(warnings: &[Warning], stderr: &mut dyn Write) -> Result<()> {
+    for w in warnings {
+        writeln!(stderr, "warning: {w}")?;
+    }
+    Ok(())
+}
+
+/// The default sweep: `from`/`to` if given, else `lo`/`hi`; 400 steps unless `step` is given.
+fn span(from: Option<f64>, to: Option<f64>, step: Option<f64>, lo: f64, hi: f64) -> (f64, f64, f64) {
+    let from = from.unwrap_or(lo);
+    let to = to.unwrap_or(hi);
+    let step = step.unwrap_or(((to - from) / 400.0).max(f64::MIN_POSITIVE));
+    (from, to, step)
+}
+
+/// Runs one command, writing results to `stdout` and warnings to `stderr`.
+pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Result<()> {
+    match cmd {
+        Command::Spectrum { design, from, to, step, aoi, side, out } => {
+            let d = load_design(&design)?;
+            let (from, to, step) =
+                span(from, to, step, 0.7 * d.reference_nm, 1.5 * d.reference_nm);
+            let wl = analysis::wavelengths_nm(from, to, step).context("wavelength range")?;
+            let s = analysis::spectrum(&d.resolve()?, &wl, aoi, side.into())?;
+            report(&s.warnings, stderr)?;
+            export::csv::write_spectrum(output(out.as_deref(), stdout)?, &s)?;
+        }
+        Command::Angles { design, wavelength, from, to, step, side, out } => {
+            let d = load_design(&design)?;
+            if !(wavelength.is_finite() && wavelength > 0.0) {
+                bail!("--wavelength must be a positive number of nm, got {wavelength}");
+            }
+            let angles = analysis::angles_deg(from, to, step).context("angle range")?;
+            let s = analysis::angle_scan(&d.resolve()?, wavelength, &angles, side.into())?;
+            report(&s.warnings, stderr)?;
+            export::csv::write_angles(output(out.as_deref(), stdout)?, &s)?;
+        }
+        Command::Nk { material, from, to, step, design } => {
+            let d = design.as_deref().map(load_design).transpose()?;
+            let user = d.as_ref().map_or(&[][..], |d| &d.materials[..]);
+            let m = Catalog::new(user).get(&material)?;
+            let (lo, hi) = m.valid_range_nm();
+            let (lo, hi) = if hi.is_finite() { (lo, hi) } else { (300.0, 1100.0) };
+            let (from, to, step) = span(from, to, step, lo, hi);
+            let wl = analysis::wavelengths_nm(from, to, step).context("wavelength range")?;
+            if let Some(w) = m.range_warning(&wl) {
+                writeln!(stderr, "warning: {w}")?;
+            }
+            let rows = wl
+                .iter()
+                .map(|&w| m.index_at(w).map(|n| (w, n.re, n.im)))
+                .collect::<Result<Vec<_>, _>>()?;
+            export::csv::write_nk(stdout, &rows)?;
+        }
+        Command::Materials => {
+            writeln!(stdout, "name,model,min_nm,max_nm,source")?;
+            for m in builtin() {
+                let (lo, hi) = m.valid_range_nm();
+                let fmt = |x: f64| if x.is_finite() && x > 0.0 { x.to_string() } else { String::new() };
+                writeln!(
+                    stdout,
+                    "{},{},{},{},{}",
+                    csv_field(&m.name),
+                    csv_field(m.model.kind_name()),
+                    fmt(lo),
+                    fmt(hi),
+                    csv_field(&m.source)
+                )?;
+            }
+        }
+        Command::Info { design } => {
+            let d = load_design(&design)?;
+            info(&d, stdout)?;
+        }
+    }
+    Ok(())
+}
+
+/// Quotes a CSV field when it holds a comma, quote or line break.
+fn csv_field(s: &str) -> String {
+    if s.contains([',', '"', '\n', '\r']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_owned()
+    }
+}
+
+fn info(d: &Design, out: &mut dyn Write) -> Result<()> {
+    writeln!(out, "{}", d.name)?;
+    let sub = match d.substrate_mm {
+        Some(mm) => format!("{} ({mm} mm, back surface counted)", d.substrate),
+        None => format!("{} (semi-infinite)", d.substrate),
+    };
+    writeln!(
+        out,
+        "incident: {}   substrate: {sub}   exit: {}   reference: {} nm",
+        d.incident, d.exit, d.reference_nm
+    )?;
+    writeln!(out, "{:>5}  {:<16} {:>12} {:>9} {:>14}", "layer", "material", "nm", "QWOT", "optical nm")?;
+    for (i, layer) in d.layers.iter().enumerate() {
+        let no = i + 1;
+        writeln!(
+            out,
+            "{no:>5}  {:<16} {:>12.3} {:>9.4} {:>14.3}{}",
+            layer.material,
+            layer.nm.get(),
+            d.layer_qwot(no)?,
+            d.layer_optical_nm(no)?,
+            if layer.locked { "  locked" } else { "" }
+        )?;
+    }
+    writeln!(out, "{} layers, {:.3} nm in all", d.layers.len(), d.total_nm())?;
+    Ok(())
+}

@@ -1,0 +1,49 @@
+//! CSV of computed curves. Numbers are written in Rust's shortest round-trip form, so reading
+//! a file back gives exactly the numbers that were computed.
+
+use std::io::{self, Write};
+
+use crate::analysis::{AngleScan, COLUMN_NAMES, Curves, Spectrum};
+
+fn write_rows(mut w: impl Write, x_name: &str, x: &[f64], curves: &Curves) -> io::Result<()> {
+    write!(w, "{x_name}")?;
+    for name in COLUMN_NAMES {
+        write!(w, ",{name}")?;
+    }
+    writeln!(w)?;
+    let cols = curves.columns();
+    for (i, xi) in x.iter().enumerate() {
+        write!(w, "{xi}")?;
+        for c in cols {
+            write!(w, ",{}", c[i])?;
+        }
+        writeln!(w)?;
+    }
+    w.flush()
+}
+
+/// `wavelength_nm,R_s,R_p,R,T_s,T_p,T,A_s,A_p,A` (fractions; R, T, A are the s/p means).
+///
+/// ```
+/// let s = stackwise::analysis::Spectrum::default();
+/// let mut out = Vec::new();
+/// stackwise::export::csv::write_spectrum(&mut out, &s).unwrap();
+/// assert_eq!(String::from_utf8(out).unwrap(), "wavelength_nm,R_s,R_p,R,T_s,T_p,T,A_s,A_p,A\n");
+/// ```
+pub fn write_spectrum(w: impl Write, s: &Spectrum) -> io::Result<()> {
+    write_rows(w, "wavelength_nm", &s.wavelength_nm, &s.curves)
+}
+
+/// `aoi_deg,R_s,R_p,R,T_s,T_p,T,A_s,A_p,A`.
+pub fn write_angles(w: impl Write, s: &AngleScan) -> io::Result<()> {
+    write_rows(w, "aoi_deg", &s.aoi_deg, &s.curves)
+}
+
+/// `wavelength_nm,n,k`.
+pub fn write_nk(mut w: impl Write, rows: &[(f64, f64, f64)]) -> io::Result<()> {
+    writeln!(w, "wavelength_nm,n,k")?;
+    for (wl, n, k) in rows {
+        writeln!(w, "{wl},{n},{k}")?;
+    }
+    w.flush()
+}

@@ -1,0 +1,11 @@
+//! The design window.
+
+use std::path::PathBuf;
+
+use anyhow::Result;
+
+/// Opens the window, with `design` loaded if given.
+pub fn run(design: Option<PathBuf>) -> Result<()> {
+    let _ = design;
+    anyhow::bail!("the window is not built yet")
+}
