@@ -320,7 +320,8 @@ mod tests {
         let mut d = sample();
         d.targets = vec![target()];
         d.validate().unwrap();
-        let cases: [(fn(&mut Target), &str); 7] = [
+        type Edit = fn(&mut Target);
+        let cases: [(Edit, &str); 7] = [
             (|t| t.aoi_deg = 90.0, "aoi_deg"),
             (|t| t.from_nm = 700.0, "swap"),
             (|t| t.step_nm = 0.0, "step_nm"),
