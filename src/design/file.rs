@@ -154,11 +154,29 @@ impl DesignFileError {
     }
 }
 
-fn syntax(e: &ron::error::SpannedError) -> DesignFileError {
+fn syntax(e: &ron::error::SpannedError, text: &str) -> DesignFileError {
+    let (line, column) = (e.span.start.line, e.span.start.col);
+    let mut message = e.code.to_string();
+    // House style: messages start in lower case (ron's start with a capital).
+    if let Some(first) = message.chars().next()
+        && message.chars().nth(1).is_some_and(char::is_lowercase)
+    {
+        message.replace_range(..first.len_utf8(), &first.to_lowercase().to_string());
+    }
+    if matches!(e.code, ron::Error::ExpectedOption) {
+        message.push_str("; write Some(value) for a value, or None");
+    }
+    // An error past the last non-blank character: the file stops early.
+    let body = text.trim_end();
+    let end_line = body.matches('\n').count() + 1;
+    let end_col = body.rsplit('\n').next().map_or(0, |l| l.chars().count());
+    if (line, column) > (end_line, end_col) {
+        message = format!("the file ends too soon (cut off?): {message}");
+    }
     DesignFileError::Syntax {
-        line: e.span.start.line,
-        column: e.span.start.col,
-        message: e.code.to_string(),
+        line,
+        column,
+        message,
         path: None,
     }
 }
@@ -189,7 +207,7 @@ pub fn from_ron_str(text: &str) -> Result<Design, DesignFileError> {
     if let Ok(head) = ron::from_str::<Head>(text) {
         check_format(head.format)?;
     }
-    let design: Design = ron::from_str(text).map_err(|e| syntax(&e))?;
+    let design: Design = ron::from_str(text).map_err(|e| syntax(&e, text))?;
     check_format(design.format)?;
     Ok(design)
 }
