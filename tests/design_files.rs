@@ -129,7 +129,10 @@ fn failed_save_leaves_the_old_file() {
     let old = Design::new_empty("Old");
     file::save(&path, &old).unwrap();
     std::fs::create_dir(dir.path().join("kept.ron.tmp")).unwrap();
-    assert!(file::save(&path, &Design::new_empty("New")).is_err(), "write must fail");
+    assert!(
+        file::save(&path, &Design::new_empty("New")).is_err(),
+        "write must fail"
+    );
     assert_eq!(file::load(&path).unwrap(), old, "old file untouched");
 }
 

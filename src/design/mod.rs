@@ -4,7 +4,7 @@
 //! A [`Design`] is plain data: the incident medium, the substrate (semi-infinite or with a
 //! thickness), the exit medium, the layers in deposition order (layer 1 sits on the substrate
 //! and is listed first), the design's own materials, and the optimisation targets. It is
-//! loaded and saved by [`file`], checked by [`Design::validate`], turned into the engine's view
+//! loaded and saved by [`file`](mod@file), checked by [`Design::validate`], turned into the engine's view
 //! by [`Design::resolve`], and can be written quickly with the [`notation`].
 //!
 //! ```
@@ -140,7 +140,7 @@ impl Layer {
 
 /// A coating design: the document.
 ///
-/// Field names are part of the file format (see [`file`]); new fields get serde defaults so
+/// Field names are part of the file format (see [`file`](mod@file)); new fields get serde defaults so
 /// older files keep loading.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]

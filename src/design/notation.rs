@@ -25,14 +25,14 @@
 //! use stackwise::design::notation::build_layers;
 //! use stackwise::material::{Catalog, Material, Model};
 //! let mats = [
-//!     Material::user("TiO2-like", Model::Constant { n: 2.2, k: 0.0 }),
-//!     Material::user("SiO2-like", Model::Constant { n: 1.375, k: 0.0 }),
+//!     Material::user("High", Model::Constant { n: 2.5, k: 0.0 }),
+//!     Material::user("Low", Model::Constant { n: 1.25, k: 0.0 }),
 //! ];
-//! let bind = BTreeMap::from([('H', "TiO2-like".to_owned()), ('L', "SiO2-like".to_owned())]);
-//! let layers = build_layers("(HL)^2 L:10nm", &bind, &Catalog::new(&mats), 550.0)?;
+//! let bind = BTreeMap::from([('H', "High".to_owned()), ('L', "Low".to_owned())]);
+//! let layers = build_layers("(HL)^2 L:10nm", &bind, &Catalog::new(&mats), 500.0)?;
 //! assert_eq!(layers.len(), 5);
-//! assert_eq!(layers[0].nm.get(), 62.5); // 550 / (4 · 2.2)
-//! assert_eq!(layers[1].nm.get(), 100.0); // 550 / (4 · 1.375)
+//! assert_eq!(layers[0].nm.get(), 50.0); // 500 / (4 · 2.5)
+//! assert_eq!(layers[1].nm.get(), 100.0); // 500 / (4 · 1.25)
 //! assert_eq!(layers[4].nm.get(), 10.0);
 //! # Ok::<(), stackwise::design::notation::NotationError>(())
 //! ```
