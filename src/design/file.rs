@@ -440,4 +440,16 @@ mod tests {
         let text = format!("\u{feff}{}", to_ron_string(&sample()).unwrap());
         assert_eq!(from_ron_str(&text).unwrap(), sample(), "BOM skipped");
     }
+
+    proptest::proptest! {
+        #[test]
+        fn cut_or_garbled_files_are_errors_not_panics(cut in 0usize..2000, junk in "[(),:\\[\\]a-z0-9\" .-]{0,8}") {
+            let text = to_ron_string(&sample()).unwrap();
+            let cut = text.char_indices().map(|(i, _)| i).nth(cut).unwrap_or(text.len());
+            let garbled = format!("{}{junk}{}", &text[..cut], &text[cut..]);
+            // Either outcome is fine; what matters is that neither panics.
+            from_ron_str(&text[..cut]).map(|d| d.validate()).ok();
+            from_ron_str(&garbled).map(|d| d.validate()).ok();
+        }
+    }
 }

@@ -660,4 +660,25 @@ mod tests {
         let l = build_layers("H:5nm", &bind(), &Catalog::new(&mats()), -5.0).unwrap();
         assert_relative_eq!(l[0].nm.get(), 5.0, epsilon = 0.0);
     }
+
+    proptest::proptest! {
+        #[test]
+        fn any_text_gives_layers_or_an_error_with_a_column(text in "[HLXQ()^:.0-9nm #é-]{0,40}") {
+            match build(&text) {
+                Ok(layers) => proptest::prop_assert!(layers.iter().all(|l| l.nm.get() > 0.0)),
+                Err(e) => {
+                    let msg = e.to_string();
+                    let col: usize = msg
+                        .strip_prefix("column ")
+                        .and_then(|r| r.split(':').next())
+                        .and_then(|c| c.parse().ok())
+                        .unwrap_or(0);
+                    proptest::prop_assert!(
+                        (1..=text.chars().count() + 1).contains(&col),
+                        "{text:?}: {msg}"
+                    );
+                }
+            }
+        }
+    }
 }

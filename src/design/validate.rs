@@ -317,10 +317,10 @@ mod tests {
 
     #[test]
     fn targets_are_checked() {
+        type Edit = fn(&mut Target);
         let mut d = sample();
         d.targets = vec![target()];
         d.validate().unwrap();
-        type Edit = fn(&mut Target);
         let cases: [(Edit, &str); 7] = [
             (|t| t.aoi_deg = 90.0, "aoi_deg"),
             (|t| t.from_nm = 700.0, "swap"),
