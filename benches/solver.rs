@@ -28,11 +28,19 @@ fn design(layers: usize) -> ResolvedDesign {
     );
     let low = Material::user(
         "L",
-        Model::Sellmeier { a: 0.0, b: vec![0.696_166_3, 0.407_942_6], c: vec![0.004_679_15, 0.013_512_06] },
+        Model::Sellmeier {
+            a: 0.0,
+            b: vec![0.696_166_3, 0.407_942_6],
+            c: vec![0.004_679_15, 0.013_512_06],
+        },
     );
     let glass = Material::user(
         "G",
-        Model::Sellmeier { a: 0.0, b: vec![1.039_612_12, 0.231_792_344], c: vec![0.006_000_698_67, 0.020_017_914_4] },
+        Model::Sellmeier {
+            a: 0.0,
+            b: vec![1.039_612_12, 0.231_792_344],
+            c: vec![0.006_000_698_67, 0.020_017_914_4],
+        },
     );
     let air = Material::user("Air", Model::Constant { n: 1.0, k: 0.0 });
     let mut seed = 0x2545_f491_4f6c_dd1d_u64;
@@ -55,8 +63,13 @@ fn design(layers: usize) -> ResolvedDesign {
 }
 
 fn solver(c: &mut Criterion) {
-    let one = rayon::ThreadPoolBuilder::new().num_threads(1).build().expect("a thread pool");
-    let all = rayon::ThreadPoolBuilder::new().build().expect("a thread pool");
+    let one = rayon::ThreadPoolBuilder::new()
+        .num_threads(1)
+        .build()
+        .expect("a thread pool");
+    let all = rayon::ThreadPoolBuilder::new()
+        .build()
+        .expect("a thread pool");
     for layers in [10, 100, 250] {
         let d = design(layers);
         for points in [1001, 10001] {
@@ -65,15 +78,24 @@ fn solver(c: &mut Criterion) {
             let mut g = c.benchmark_group(format!("tmm/layers={layers}/wl={points}"));
             g.throughput(Throughput::Elements((layers * points) as u64));
             g.sample_size(10).warm_up_time(Duration::from_millis(300));
-            g.measurement_time(Duration::from_secs(if layers * points > 500_000 { 3 } else { 1 }));
+            g.measurement_time(Duration::from_secs(if layers * points > 500_000 {
+                3
+            } else {
+                1
+            }));
             for aoi in [0.0, 45.0] {
                 g.bench_function(format!("aoi={aoi}/threads=1"), |b| {
                     b.iter(|| one.install(|| spectrum(black_box(&d), &wl, aoi, Side::Front)))
                 });
                 if points == 10001 {
-                    g.bench_function(format!("aoi={aoi}/threads={}", all.current_num_threads()), |b| {
-                        b.iter(|| all.install(|| spectrum(black_box(&d), &wl, aoi, Side::Front)))
-                    });
+                    g.bench_function(
+                        format!("aoi={aoi}/threads={}", all.current_num_threads()),
+                        |b| {
+                            b.iter(|| {
+                                all.install(|| spectrum(black_box(&d), &wl, aoi, Side::Front))
+                            })
+                        },
+                    );
                 }
             }
             g.finish();

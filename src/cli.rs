@@ -16,7 +16,12 @@ use crate::optics::Side;
 
 /// Design and analyse optical thin-film coatings. With no command, opens the window.
 #[derive(Debug, Parser)]
-#[command(name = "stackwise", version, about, args_conflicts_with_subcommands = true)]
+#[command(
+    name = "stackwise",
+    version,
+    about,
+    args_conflicts_with_subcommands = true
+)]
 pub struct Cli {
     /// A design file to open in the window.
     pub design: Option<PathBuf>,
@@ -143,11 +148,12 @@ pub fn main(open_window: impl FnOnce(Option<PathBuf>) -> Result<()>) -> ExitCode
 /// Loads and checks a design file, with the path in any error.
 pub fn load_design(path: &Path) -> Result<Design> {
     let d = file::load(path)?;
-    d.validate().with_context(|| format!("in {}", path.display()))?;
+    d.validate()
+        .with_context(|| format!("in {}", path.display()))?;
     Ok(d)
 }
 
-fn output(out: Option<&Path>, stdout: &mut dyn Write) -> Result<Box<dyn Write + '_>> {
+fn output<'w>(out: Option<&Path>, stdout: &'w mut dyn Write) -> Result<Box<dyn Write + 'w>> {
     Ok(match out {
         Some(p) => Box::new(BufWriter::new(
             File::create(p).with_context(|| format!("cannot create {}", p.display()))?,
@@ -164,7 +170,13 @@ fn report(warnings: &[Warning], stderr: &mut dyn Write) -> Result<()> {
 }
 
 /// The default sweep: `from`/`to` if given, else `lo`/`hi`; 400 steps unless `step` is given.
-fn span(from: Option<f64>, to: Option<f64>, step: Option<f64>, lo: f64, hi: f64) -> (f64, f64, f64) {
+fn span(
+    from: Option<f64>,
+    to: Option<f64>,
+    step: Option<f64>,
+    lo: f64,
+    hi: f64,
+) -> (f64, f64, f64) {
     let from = from.unwrap_or(lo);
     let to = to.unwrap_or(hi);
     let step = step.unwrap_or(((to - from) / 400.0).max(f64::MIN_POSITIVE));
@@ -174,16 +186,31 @@ fn span(from: Option<f64>, to: Option<f64>, step: Option<f64>, lo: f64, hi: f64)
 /// Runs one command, writing results to `stdout` and warnings to `stderr`.
 pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Result<()> {
     match cmd {
-        Command::Spectrum { design, from, to, step, aoi, side, out } => {
+        Command::Spectrum {
+            design,
+            from,
+            to,
+            step,
+            aoi,
+            side,
+            out,
+        } => {
             let d = load_design(&design)?;
-            let (from, to, step) =
-                span(from, to, step, 0.7 * d.reference_nm, 1.5 * d.reference_nm);
+            let (from, to, step) = span(from, to, step, 0.7 * d.reference_nm, 1.5 * d.reference_nm);
             let wl = analysis::wavelengths_nm(from, to, step).context("wavelength range")?;
             let s = analysis::spectrum(&d.resolve()?, &wl, aoi, side.into())?;
             report(&s.warnings, stderr)?;
             export::csv::write_spectrum(output(out.as_deref(), stdout)?, &s)?;
         }
-        Command::Angles { design, wavelength, from, to, step, side, out } => {
+        Command::Angles {
+            design,
+            wavelength,
+            from,
+            to,
+            step,
+            side,
+            out,
+        } => {
             let d = load_design(&design)?;
             if !(wavelength.is_finite() && wavelength > 0.0) {
                 bail!("--wavelength must be a positive number of nm, got {wavelength}");
@@ -193,12 +220,22 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
             report(&s.warnings, stderr)?;
             export::csv::write_angles(output(out.as_deref(), stdout)?, &s)?;
         }
-        Command::Nk { material, from, to, step, design } => {
+        Command::Nk {
+            material,
+            from,
+            to,
+            step,
+            design,
+        } => {
             let d = design.as_deref().map(load_design).transpose()?;
             let user = d.as_ref().map_or(&[][..], |d| &d.materials[..]);
             let m = Catalog::new(user).get(&material)?;
             let (lo, hi) = m.valid_range_nm();
-            let (lo, hi) = if hi.is_finite() { (lo, hi) } else { (300.0, 1100.0) };
+            let (lo, hi) = if hi.is_finite() {
+                (lo, hi)
+            } else {
+                (300.0, 1100.0)
+            };
             let (from, to, step) = span(from, to, step, lo, hi);
             let wl = analysis::wavelengths_nm(from, to, step).context("wavelength range")?;
             if let Some(w) = m.range_warning(&wl) {
@@ -214,7 +251,13 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
             writeln!(stdout, "name,model,min_nm,max_nm,source")?;
             for m in builtin() {
                 let (lo, hi) = m.valid_range_nm();
-                let fmt = |x: f64| if x.is_finite() && x > 0.0 { x.to_string() } else { String::new() };
+                let fmt = |x: f64| {
+                    if x.is_finite() && x > 0.0 {
+                        x.to_string()
+                    } else {
+                        String::new()
+                    }
+                };
                 writeln!(
                     stdout,
                     "{},{},{},{},{}",
@@ -254,7 +297,11 @@ fn info(d: &Design, out: &mut dyn Write) -> Result<()> {
         "incident: {}   substrate: {sub}   exit: {}   reference: {} nm",
         d.incident, d.exit, d.reference_nm
     )?;
-    writeln!(out, "{:>5}  {:<16} {:>12} {:>9} {:>14}", "layer", "material", "nm", "QWOT", "optical nm")?;
+    writeln!(
+        out,
+        "{:>5}  {:<16} {:>12} {:>9} {:>14}",
+        "layer", "material", "nm", "QWOT", "optical nm"
+    )?;
     for (i, layer) in d.layers.iter().enumerate() {
         let no = i + 1;
         writeln!(
@@ -267,6 +314,11 @@ fn info(d: &Design, out: &mut dyn Write) -> Result<()> {
             if layer.locked { "  locked" } else { "" }
         )?;
     }
-    writeln!(out, "{} layers, {:.3} nm in all", d.layers.len(), d.total_nm())?;
+    writeln!(
+        out,
+        "{} layers, {:.3} nm in all",
+        d.layers.len(),
+        d.total_nm()
+    )?;
     Ok(())
 }

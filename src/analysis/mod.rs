@@ -7,6 +7,6 @@
 mod sweep;
 
 pub use sweep::{
-    AngleScan, COLUMN_NAMES, Curves, PARALLEL_MIN_WORK, Spectrum, SweepError, Warning, angle_scan, angles_deg,
-    spectrum, wavelengths_nm,
+    AngleScan, COLUMN_NAMES, Curves, PARALLEL_MIN_WORK, Spectrum, SweepError, Warning, angle_scan,
+    angles_deg, spectrum, wavelengths_nm,
 };

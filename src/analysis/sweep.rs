@@ -159,7 +159,10 @@ impl Curves {
     /// The nine intensity columns in the order R_s, R_p, R, T_s, T_p, T, A_s, A_p, A.
     #[must_use]
     pub fn columns(&self) -> [&[f64]; 9] {
-        [&self.r_s, &self.r_p, &self.r, &self.t_s, &self.t_p, &self.t, &self.a_s, &self.a_p, &self.a]
+        [
+            &self.r_s, &self.r_p, &self.r, &self.t_s, &self.t_p, &self.t, &self.a_s, &self.a_p,
+            &self.a,
+        ]
     }
 }
 
@@ -213,7 +216,9 @@ fn grid(from: f64, to: f64, step: f64) -> Result<Vec<f64>, SweepError> {
     let span = to - from;
     let n = (span / step * (1.0 + 1e-12)).floor();
     if n >= MAX_POINTS as f64 {
-        return Err(SweepError::TooManyPoints { points: n as usize + 1 });
+        return Err(SweepError::TooManyPoints {
+            points: n as usize + 1,
+        });
     }
     let n = n as usize;
     let mut v: Vec<f64> = (0..=n).map(|i| from + step * i as f64).collect();
@@ -237,7 +242,9 @@ fn grid(from: f64, to: f64, step: f64) -> Result<Vec<f64>, SweepError> {
 pub fn wavelengths_nm(from_nm: f64, to_nm: f64, step_nm: f64) -> Result<Vec<f64>, SweepError> {
     let w = grid(from_nm, to_nm, step_nm)?;
     if from_nm <= 0.0 {
-        return Err(SweepError::BadWavelength { wavelength_nm: from_nm });
+        return Err(SweepError::BadWavelength {
+            wavelength_nm: from_nm,
+        });
     }
     Ok(w)
 }
@@ -261,7 +268,10 @@ fn check_angle(aoi_deg: f64) -> Result<(), SweepError> {
 
 /// Every material the solver needs: layer materials first, then incident, substrate, exit.
 fn all_materials(d: &ResolvedDesign) -> Vec<&Material> {
-    d.materials.iter().chain([&d.incident, &d.substrate, &d.exit]).collect()
+    d.materials
+        .iter()
+        .chain([&d.incident, &d.substrate, &d.exit])
+        .collect()
 }
 
 /// Indices of `mats` at each wavelength, row-major (wavelength, material).
@@ -291,9 +301,15 @@ fn warnings(d: &ResolvedDesign, wavelengths_nm: &[f64], indices: &[Complex64]) -
         }
     }
     let width = d.materials.len() + 3;
-    let k = indices.chunks(width).map(|row| row[d.materials.len()].im).fold(0.0, f64::max);
+    let k = indices
+        .chunks(width)
+        .map(|row| row[d.materials.len()].im)
+        .fold(0.0, f64::max);
     if k > 0.0 {
-        out.push(Warning::AbsorbingIncident { material: d.incident.name.clone(), k });
+        out.push(Warning::AbsorbingIncident {
+            material: d.incident.name.clone(),
+            k,
+        });
     }
     out
 }
@@ -370,7 +386,13 @@ pub fn angle_scan(
     let mats = all_materials(d);
     let table = index_table(&mats, &[wavelength_nm])?;
     let responses = run(aoi_deg.len(), d.layers.len(), |i, scratch| {
-        solve(&stack_at(d, &table), wavelength_nm, aoi_deg[i].to_radians(), side, scratch)
+        solve(
+            &stack_at(d, &table),
+            wavelength_nm,
+            aoi_deg[i].to_radians(),
+            side,
+            scratch,
+        )
     });
     Ok(AngleScan {
         aoi_deg: aoi_deg.to_vec(),
@@ -394,11 +416,29 @@ mod tests {
 
     #[test]
     fn bad_ranges_name_the_problem() {
-        assert!(matches!(grid(1.0, 0.0, 1.0), Err(SweepError::Inverted { .. })));
-        assert!(matches!(grid(0.0, 1.0, 0.0), Err(SweepError::BadStep { .. })));
-        assert!(matches!(grid(0.0, f64::NAN, 1.0), Err(SweepError::NotFinite { .. })));
-        assert!(matches!(grid(0.0, 1e9, 1e-3), Err(SweepError::TooManyPoints { .. })));
-        assert!(matches!(angles_deg(0.0, 90.0, 1.0), Err(SweepError::BadAngle { .. })));
-        assert!(matches!(wavelengths_nm(0.0, 10.0, 1.0), Err(SweepError::BadWavelength { .. })));
+        assert!(matches!(
+            grid(1.0, 0.0, 1.0),
+            Err(SweepError::Inverted { .. })
+        ));
+        assert!(matches!(
+            grid(0.0, 1.0, 0.0),
+            Err(SweepError::BadStep { .. })
+        ));
+        assert!(matches!(
+            grid(0.0, f64::NAN, 1.0),
+            Err(SweepError::NotFinite { .. })
+        ));
+        assert!(matches!(
+            grid(0.0, 1e9, 1e-3),
+            Err(SweepError::TooManyPoints { .. })
+        ));
+        assert!(matches!(
+            angles_deg(0.0, 90.0, 1.0),
+            Err(SweepError::BadAngle { .. })
+        ));
+        assert!(matches!(
+            wavelengths_nm(0.0, 10.0, 1.0),
+            Err(SweepError::BadWavelength { .. })
+        ));
     }
 }
