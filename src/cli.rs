@@ -133,10 +133,9 @@ pub fn main(open_window: impl FnOnce(Option<PathBuf>) -> Result<()>) -> ExitCode
     match result {
         Ok(()) => ExitCode::SUCCESS,
         Err(e) => {
-            let mut msg = format!("error: {e}");
-            for cause in e.chain().skip(1) {
-                msg.push_str(&format!("\n  caused by: {cause}"));
-            }
+            let msg = e.chain().skip(1).fold(format!("error: {e}"), |msg, cause| {
+                format!("{msg}\n  caused by: {cause}")
+            });
             log::error!("{msg}");
             // Standard error is the place for this; a failed write there has nowhere to go.
             writeln!(io::stderr(), "{msg}").ok();

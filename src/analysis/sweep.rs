@@ -252,7 +252,7 @@ pub fn wavelengths_nm(from_nm: f64, to_nm: f64, step_nm: f64) -> Result<Vec<f64>
 /// Angles (degrees) from `from_deg` to `to_deg` inclusive, each in 0 ≤ θ < 90.
 pub fn angles_deg(from_deg: f64, to_deg: f64, step_deg: f64) -> Result<Vec<f64>, SweepError> {
     let a = grid(from_deg, to_deg, step_deg)?;
-    for &x in [from_deg, to_deg].iter() {
+    for x in [from_deg, to_deg] {
         check_angle(x)?;
     }
     Ok(a)

@@ -6,6 +6,6 @@ use anyhow::Result;
 
 /// Opens the window, with `design` loaded if given.
 pub fn run(design: Option<PathBuf>) -> Result<()> {
-    let _ = design;
+    drop(design);
     anyhow::bail!("the window is not built yet")
 }
