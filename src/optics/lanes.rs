@@ -52,6 +52,8 @@ pub(crate) struct Tilted4 {
     inv_eta_s: Cx4,
     eta_p: Cx4,
     inv_eta_p: Cx4,
+    /// q is real in every lane: the layer neither absorbs nor is evanescent (no exp needed).
+    real: bool,
 }
 
 impl Tilted4 {
@@ -62,6 +64,7 @@ impl Tilted4 {
             inv_eta_s: Cx4::gather(t.map(|t| t.inv_eta_s)),
             eta_p: Cx4::gather(t.map(|t| t.eta_p)),
             inv_eta_p: Cx4::gather(t.map(|t| t.inv_eta_p)),
+            real: t.iter().all(|t| t.q.im == 0.0),
         }
     }
 }
@@ -86,14 +89,17 @@ pub(crate) fn coherent4<'a>(
     for (m, d_nm) in layers {
         let kd = k0 * f64x4::splat(d_nm);
         let a = m.q.re * kd;
-        let b = m.q.im * kd; // >= 0: the branch of q decays
         let (sin_a, cos_a) = a.sin_cos();
-        let em = (-b).exp();
-        let em2 = em * em;
-        // cosh b · e^(−b) and sinh b · e^(−b)
-        let ch = (f64x4::ONE + em2) * half;
-        let sh = (f64x4::ONE - em2) * half;
-        log_scale += b;
+        // cosh b · e^(−b) and sinh b · e^(−b), with b = Im δ >= 0 (q is on the decaying branch)
+        let (ch, sh) = if m.real {
+            (f64x4::ONE, f64x4::ZERO)
+        } else {
+            let b = m.q.im * kd;
+            let em = (-b).exp();
+            let em2 = em * em;
+            log_scale += b;
+            ((f64x4::ONE + em2) * half, (f64x4::ONE - em2) * half)
+        };
         // cos(a + ib) = cos a cosh b − i sin a sinh b; i sin(a + ib) = −cos a sinh b + i sin a cosh b
         let cos_d = Cx4 {
             re: cos_a * ch,
