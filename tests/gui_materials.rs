@@ -229,3 +229,93 @@ fn search_filters_the_list() {
         "only the one match is listed"
     );
 }
+
+#[test]
+fn sellmeier_terms_are_added_in_order() {
+    let mut h = harness(Design::new_empty("test"));
+    h.run();
+    type_into(&mut h, "Name", "Glass");
+    h.get_by_label("Sellmeier").click();
+    h.run();
+    type_into(&mut h, "B1", "1.03");
+    type_into(&mut h, "C1 (µm²)", "0.006");
+    h.get_by_label("Add term").click();
+    h.run();
+    type_into(&mut h, "B2", "0.23");
+    type_into(&mut h, "C2 (µm²)", "0.02");
+    type_into(&mut h, "Valid from (nm)", "350");
+    type_into(&mut h, "to (nm)", "2000");
+    h.get_by_label("Add to design").click();
+    h.run();
+    let m = added(&h);
+    assert_eq!(
+        m.model,
+        Model::Sellmeier {
+            a: 0.0,
+            b: vec![1.03, 0.23],
+            c: vec![0.006, 0.02],
+        }
+    );
+    assert_eq!(m.range_nm, Some((350.0, 2000.0)));
+}
+
+#[test]
+fn a_copied_builtin_keeps_its_citation() {
+    let original = builtin()
+        .iter()
+        .find(|m| matches!(m.model, Model::Table { .. }) && !m.source.is_empty())
+        .expect("the library has a cited table");
+    let mut h = harness(Design::new_empty("test"));
+    h.run();
+    type_into(&mut h, "Search", &original.name);
+    h.get_by_label_contains(&format!("{} — ", original.name))
+        .click();
+    h.run();
+    h.get_by_label("Copy to form").click();
+    h.run();
+    type_into(&mut h, "Name", " copy");
+    h.get_by_label("Add to design").click();
+    h.run();
+    let m = added(&h);
+    assert_eq!(m.name, format!("{} copy", original.name));
+    assert_eq!(
+        m.model, original.model,
+        "the rows survive the form's round trip"
+    );
+    assert!(
+        m.source.contains(&original.source) && m.source.contains("based on"),
+        "{}",
+        m.source
+    );
+}
+
+#[test]
+fn every_builtin_and_every_form_kind_can_be_shown() {
+    // The harness panics on a character the bundled fonts cannot draw, so this also checks
+    // that names, citations and the form's formulas render.
+    let mut h = harness(Design::new_empty("test"));
+    h.run();
+    for m in builtin() {
+        h.state_mut().0 = BrowserState::default();
+        h.run();
+        type_into(&mut h, "Search", &m.name);
+        let label = format!("{} — {}", m.name, m.model.kind_name());
+        h.get_by_label(&label).scroll_to_me();
+        h.run();
+        h.get_by_label(&label).click();
+        h.run();
+        assert!(
+            h.query_by_label("Copy to form").is_some(),
+            "{} is shown with its details",
+            m.name
+        );
+    }
+    for kind in ["Cauchy", "Sellmeier", "Table from CSV", "Constant"] {
+        h.get_by_label(kind).click();
+        h.run();
+    }
+    assert!(
+        h.query_by_label("Index n").is_some(),
+        "the last choice, Constant, shows its fields"
+    );
+}

@@ -166,8 +166,11 @@ struct Form {
     unit: WavelengthUnit,
     /// The last parse of `csv` with `unit`, kept until either changes.
     parsed: Option<ParsedCsv>,
-    /// Citation carried over from an edited material or a loaded file.
+    /// Citation carried over from an edited or copied material.
     source: String,
+    /// The file a table was loaded from and the text it gave, to cite it while that text
+    /// stands.
+    loaded: Option<(String, String)>,
     loading: Option<Receiver<Loaded>>,
     load_message: Option<String>,
     preview: Option<Curves>,
@@ -231,6 +234,7 @@ impl Form {
         self.name.clone_from(&m.name);
         self.editing = editing;
         self.source.clone_from(&m.source);
+        self.loaded = None;
         let (from, to) = m
             .range_nm
             .map_or((String::new(), String::new()), |(a, b)| (fmt(&a), fmt(&b)));
@@ -253,6 +257,21 @@ impl Form {
                 unit: self.unit,
                 result: parse_nk_csv(&self.csv, self.unit),
             });
+        }
+    }
+
+    /// The citation for the material: a loaded file for a table (marked if the text was
+    /// changed since), else what the edited or copied material had.
+    fn source_for_kind(&self) -> String {
+        match &self.loaded {
+            Some((file, text)) if self.kind == FormKind::Table => {
+                if *text == self.csv {
+                    format!("imported from {file}")
+                } else {
+                    format!("imported from {file}, edited")
+                }
+            }
+            _ => self.source.clone(),
         }
     }
 
@@ -314,7 +333,7 @@ impl Form {
             name: name.to_owned(),
             model,
             range_nm,
-            source: self.source.clone(),
+            source: self.source_for_kind(),
         };
         material.validate().map_err(|e| e.to_string())?;
         Ok(material)
@@ -437,8 +456,8 @@ fn poll_loading(ui: &egui::Ui, form: &mut Form) {
                     text,
                     lossy,
                 } => {
-                    form.csv = text;
-                    form.source = format!("imported from {file_name}");
+                    form.csv.clone_from(&text);
+                    form.loaded = Some((file_name.clone(), text));
                     if form.name.trim().is_empty() {
                         form.name = Path::new(&file_name)
                             .file_stem()
@@ -521,46 +540,45 @@ fn list_ui(ui: &mut egui::Ui, state: &mut BrowserState, design: &Design) {
         .labelled_by(l.id);
     });
     let needle = state.search.trim().to_lowercase();
-    let matches = |m: &Material| {
-        needle.is_empty()
-            || m.name.to_lowercase().contains(&needle)
-            || m.source.to_lowercase().contains(&needle)
-    };
+    // Name matches first, then materials found only through their citation; the design's own
+    // before the built-ins within each group.
+    let all = design
+        .materials
+        .iter()
+        .map(|m| (m, true))
+        .chain(builtin().iter().map(|m| (m, false)));
+    let mut listed: Vec<(&Material, bool, bool)> = all
+        .filter_map(|(m, in_design)| {
+            if needle.is_empty() || m.name.to_lowercase().contains(&needle) {
+                Some((m, in_design, true))
+            } else if m.source.to_lowercase().contains(&needle) {
+                Some((m, in_design, false))
+            } else {
+                None
+            }
+        })
+        .collect();
+    listed.sort_by_key(|&(_, _, by_name)| !by_name); // stable: keeps the order within groups
     egui::ScrollArea::vertical()
         .id_salt("material-list")
         .max_height(200.0)
         .auto_shrink([false, true])
         .show(ui, |ui| {
-            let mut shown = 0;
-            for m in design.materials.iter().filter(|m| matches(m)) {
-                shown += 1;
+            for &(m, in_design, _) in &listed {
                 let sel = Selection {
                     name: m.name.clone(),
-                    in_design: true,
+                    in_design,
                 };
-                let text = format!("{} — {} (in this design)", m.name, m.model.kind_name());
-                if ui
-                    .selectable_label(state.selected.as_ref() == Some(&sel), text)
-                    .clicked()
-                {
-                    state.selected = Some(sel);
-                }
-            }
-            for m in builtin().iter().filter(|m| matches(m)) {
-                shown += 1;
-                let sel = Selection {
-                    name: m.name.clone(),
-                    in_design: false,
-                };
-                let shadowed = design.materials.iter().any(|d| d.name == m.name);
-                let text = if shadowed {
+                let kind = m.model.kind_name();
+                let text = if in_design {
+                    format!("{} — {kind} (in this design)", m.name)
+                } else if design.materials.iter().any(|d| d.name == m.name) {
                     format!(
-                        "{} — {} (built-in; this design's own takes precedence)",
-                        m.name,
-                        m.model.kind_name()
+                        "{} — {kind} (built-in; this design's own takes precedence)",
+                        m.name
                     )
                 } else {
-                    format!("{} — {}", m.name, m.model.kind_name())
+                    format!("{} — {kind}", m.name)
                 };
                 if ui
                     .selectable_label(state.selected.as_ref() == Some(&sel), text)
@@ -569,7 +587,7 @@ fn list_ui(ui: &mut egui::Ui, state: &mut BrowserState, design: &Design) {
                     state.selected = Some(sel);
                 }
             }
-            if shown == 0 {
+            if listed.is_empty() {
                 ui.weak("no material matches the search");
             }
         });
@@ -632,7 +650,12 @@ fn details_ui(
             .on_hover_text("start a design material from this one")
             .clicked()
         {
-            let m = material.clone();
+            let mut m = material.clone();
+            m.source = if m.source.is_empty() {
+                format!("based on the built-in {}", m.name)
+            } else {
+                format!("based on the built-in {} ({})", m.name, m.source)
+            };
             if !state.form.load_material(&m, None) {
                 state.form.load_message = Some(format!(
                     "the {} model has no form here; define it in the design file",
@@ -754,7 +777,7 @@ fn form_ui(ui: &mut egui::Ui, state: &mut BrowserState, design: &Design) -> Opti
 
 /// The Sellmeier coefficients: an optional constant and a list of (B, C) terms.
 fn sellmeier_ui(ui: &mut egui::Ui, form: &mut Form) {
-    ui.weak("n² = 1 + a + Σ Bᵢλ²/(λ² − Cᵢ), λ in µm, Cᵢ in µm²");
+    ui.weak("n² = 1 + a + Σ B·λ²/(λ² − C) over the terms, λ in µm, C in µm²");
     labelled_field(ui, "Extra constant a", &mut form.sellmeier_a, "0");
     if form.terms.is_empty() {
         form.terms.push((String::new(), String::new()));
@@ -769,7 +792,7 @@ fn sellmeier_ui(ui: &mut egui::Ui, form: &mut Form) {
             ui.add(egui::TextEdit::singleline(c).desired_width(90.0))
                 .labelled_by(l.id);
             if ui
-                .small_button("✕")
+                .small_button("Remove")
                 .on_hover_text("remove this term")
                 .clicked()
             {
@@ -789,14 +812,20 @@ fn sellmeier_ui(ui: &mut egui::Ui, form: &mut Form) {
 fn table_ui(ui: &mut egui::Ui, form: &mut Form) {
     ui.weak("one row per line: wavelength, n[, k] — separated by commas, semicolons or tabs");
     let l = ui.label("CSV table");
-    ui.add(
-        egui::TextEdit::multiline(&mut form.csv)
-            .code_editor()
-            .desired_rows(6)
-            .desired_width(f32::INFINITY)
-            .hint_text("wavelength (nm), n, k\n400, 2.1, 0.01\n500, 2.0, 0.005"),
-    )
-    .labelled_by(l.id);
+    // A long table scrolls inside the box instead of pushing the rest of the form away.
+    egui::ScrollArea::vertical()
+        .id_salt("material-csv-box")
+        .max_height(160.0)
+        .show(ui, |ui| {
+            ui.add(
+                egui::TextEdit::multiline(&mut form.csv)
+                    .code_editor()
+                    .desired_rows(6)
+                    .desired_width(f32::INFINITY)
+                    .hint_text("wavelength (nm), n, k\n400, 2.1, 0.01\n500, 2.0, 0.005"),
+            )
+            .labelled_by(l.id);
+        });
     ui.horizontal(|ui| {
         let loading = form.loading.is_some();
         if ui
@@ -911,4 +940,67 @@ fn submit_ui(
         }
     });
     action
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn unbounded_formula_is_plotted_over_the_default_span() {
+        let m = Material::user("c", Model::Constant { n: 1.5, k: 0.0 });
+        let c = Curves::sample(&m);
+        assert_eq!(c.n.len(), SAMPLES, "one point per sample");
+        assert_eq!(c.n.first().map(|p| p.x), Some(DEFAULT_SPAN_NM.0));
+        assert_eq!(c.n.last().map(|p| p.x), Some(DEFAULT_SPAN_NM.1));
+    }
+
+    #[test]
+    fn a_table_is_plotted_at_its_rows() {
+        let m = Material::user(
+            "t",
+            Model::Table {
+                rows: vec![(400.0, 2.0, 0.1), (700.0, 1.9, 0.0)],
+            },
+        );
+        let c = Curves::sample(&m);
+        let xs: Vec<f64> = c.k.iter().map(|p| p.x).collect();
+        assert_eq!(xs, [400.0, 700.0]);
+        assert_eq!(c.k.first().map(|p| p.y), Some(0.1));
+    }
+
+    #[test]
+    fn the_curves_are_resampled_only_when_the_material_changes() {
+        let mut cache = None;
+        let a = Material::user("a", Model::Constant { n: 1.5, k: 0.0 });
+        Curves::for_material(&mut cache, &a);
+        // Mark the cached entry; a resample would replace the mark.
+        if let Some(c) = cache.as_mut() {
+            c.failed = 99;
+        }
+        let again = Curves::for_material(&mut cache, &a);
+        assert_eq!(
+            again.failed, 99,
+            "same material: the cached points are reused"
+        );
+        let b = Material::user("a", Model::Constant { n: 1.6, k: 0.0 });
+        let c = Curves::for_material(&mut cache, &b);
+        assert_eq!(
+            c.n.first().map(|p| p.y),
+            Some(1.6),
+            "a changed material is resampled"
+        );
+    }
+
+    #[test]
+    fn form_numbers_accept_decimal_commas_and_name_the_field() {
+        assert_eq!(number("n", " 1,45 ", None), Ok(1.45));
+        assert_eq!(number("k", "", Some(0.0)), Ok(0.0));
+        let e = number("n", "abc", None).unwrap_err();
+        assert!(e.contains("n:") && e.contains("\"abc\""), "{e}");
+        let e = number("n", "", None).unwrap_err();
+        assert!(e.contains("enter a number"), "{e}");
+        let e = number("n", "inf", None).unwrap_err();
+        assert!(e.contains("finite"), "{e}");
+    }
 }
