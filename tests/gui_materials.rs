@@ -97,7 +97,7 @@ fn pasted_csv_becomes_a_table_material() {
 fn a_bad_table_shows_the_line_and_cannot_be_added() {
     let mut h = harness(Design::new_empty("test"));
     h.run();
-    type_into(&mut h, "Name", "Broken");
+    // No name yet: the table's own error must still show.
     h.get_by_label("Table from CSV").click();
     h.run();
     h.get_by_label("CSV table").click();
@@ -109,6 +109,7 @@ fn a_bad_table_shows_the_line_and_cannot_be_added() {
             .is_some(),
         "the parse error is shown in place, naming the line"
     );
+    type_into(&mut h, "Name", "Broken");
     h.get_by_label("Add to design").click();
     h.run();
     assert_eq!(h.state().2, None, "a broken table must not be added");

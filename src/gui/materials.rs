@@ -277,10 +277,19 @@ impl Form {
 
     /// The material the form describes, or what is missing or wrong.
     fn build(&self) -> Result<Material, String> {
-        let name = self.name.trim();
-        if name.is_empty() {
+        let m = self.build_model()?;
+        if self.name.trim().is_empty() {
             return Err("give the material a name".into());
         }
+        Ok(m)
+    }
+
+    /// The material without the name check, so a preview can show before it is named.
+    fn build_model(&self) -> Result<Material, String> {
+        let name = match self.name.trim() {
+            "" => "new material",
+            n => n,
+        };
         let model = match self.kind {
             FormKind::Constant => Model::Constant {
                 n: number("n", &self.n, None)?,
@@ -741,15 +750,15 @@ fn form_ui(ui: &mut egui::Ui, state: &mut BrowserState, design: &Design) -> Opti
         ui.label(msg.as_str());
     }
 
+    if form.kind != FormKind::Table
+        && let Ok(m) = form.build_model()
+    {
+        ui.label("Preview");
+        Curves::for_material(&mut form.preview, &m).show(ui, "material-form-plot");
+    }
     let built = form.build();
-    match &built {
-        Ok(m) => {
-            if form.kind != FormKind::Table {
-                ui.label("Preview");
-                Curves::for_material(&mut form.preview, m).show(ui, "material-form-plot");
-            }
-        }
-        Err(e) => error(ui, e.as_str()),
+    if let Err(e) = &built {
+        error(ui, e.as_str());
     }
     let action = submit_ui(ui, form, design, built.as_ref().ok());
     let label = if form.editing.is_some() {
