@@ -1,5 +1,7 @@
 //! The design window.
 
+pub mod materials;
+
 use std::path::PathBuf;
 
 use anyhow::Result;
