@@ -26,8 +26,8 @@ fn stackwise() -> Command {
 fn ok(args: &[&str]) -> (String, String) {
     let out = stackwise().args(args).output().expect("runs");
     let (o, e) = (
-        String::from_utf8(out.stdout).unwrap(),
-        String::from_utf8(out.stderr).unwrap(),
+        String::from_utf8(out.stdout).expect("UTF-8 output"),
+        String::from_utf8(out.stderr).expect("UTF-8 errors"),
     );
     assert!(out.status.success(), "{args:?} failed: {e}");
     (o, e)
@@ -49,7 +49,7 @@ fn fails(args: &[&str]) -> String {
 fn rows(csv: &str) -> Vec<Vec<f64>> {
     csv.lines()
         .skip(1)
-        .map(|l| l.split(',').map(|x| x.parse().unwrap()).collect())
+        .map(|l| l.split(',').map(|x| x.parse().expect("a number")).collect())
         .collect()
 }
 

@@ -332,7 +332,7 @@ fn run(
             .enumerate()
             .with_min_len(16)
             .for_each_init(Scratch4::default, |scratch, (c, chunk)| {
-                fill(chunk, 4 * c, scratch)
+                fill(chunk, 4 * c, scratch);
             });
     } else {
         let mut scratch = Scratch4::default();

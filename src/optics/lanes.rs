@@ -27,7 +27,7 @@ impl Cx4 {
         Complex64::new(self.re.to_array()[i], self.im.to_array()[i])
     }
 
-    #[inline(always)]
+    #[inline]
     fn mul(self, o: Self) -> Self {
         Self {
             re: self.re * o.re - self.im * o.im,
@@ -35,7 +35,7 @@ impl Cx4 {
         }
     }
 
-    #[inline(always)]
+    #[inline]
     fn sub(self, o: Self) -> Self {
         Self {
             re: self.re - o.re,
