@@ -6,7 +6,7 @@ use std::hint::black_box;
 use std::time::Duration;
 
 use criterion::{Criterion, Throughput, criterion_group, criterion_main};
-use stackwise::analysis::{spectrum, wavelengths_nm};
+use stackwise::analysis::{angle_scan, angles_deg, spectrum, wavelengths_nm};
 use stackwise::design::ResolvedDesign;
 use stackwise::material::{Material, Model};
 use stackwise::optics::Side;
@@ -103,5 +103,25 @@ fn solver(c: &mut Criterion) {
     }
 }
 
-criterion_group!(benches, solver);
+/// One full live recompute of the window: a 100-layer dispersive design over 1001 wavelengths
+/// plus a 90-angle scan, as the window runs it after every edit (all cores).
+fn live(c: &mut Criterion) {
+    let d = design(100);
+    let wl = wavelengths_nm(400.0, 1400.0, 1.0).expect("grid");
+    let angles = angles_deg(0.0, 89.0, 1.0).expect("angles");
+    assert_eq!((wl.len(), angles.len()), (1001, 90), "sizes");
+    let mut g = c.benchmark_group("live/layers=100");
+    g.sample_size(20).warm_up_time(Duration::from_millis(300));
+    g.measurement_time(Duration::from_secs(2));
+    g.bench_function("wl=1001+angles=90", |b| {
+        b.iter(|| {
+            let s = spectrum(black_box(&d), &wl, 0.0, Side::Front);
+            let a = angle_scan(black_box(&d), 550.0, &angles, Side::Front);
+            (s, a)
+        });
+    });
+    g.finish();
+}
+
+criterion_group!(benches, solver, live);
 criterion_main!(benches);
