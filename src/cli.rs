@@ -48,6 +48,32 @@ impl From<SideArg> for Side {
     }
 }
 
+/// A wavelength range; each bound defaults by command.
+#[derive(Debug, Clone, Copy, clap::Args)]
+pub struct Range {
+    /// First wavelength, nm.
+    #[arg(long)]
+    pub from: Option<f64>,
+    /// Last wavelength, nm.
+    #[arg(long)]
+    pub to: Option<f64>,
+    /// Wavelength step, nm [default: 400 steps over the range].
+    #[arg(long)]
+    pub step: Option<f64>,
+}
+
+impl Range {
+    /// The wavelengths: given bounds, else `lo`/`hi`; 400 steps unless a step is given.
+    pub fn wavelengths_nm(self, lo: f64, hi: f64) -> Result<Vec<f64>> {
+        let from = self.from.unwrap_or(lo);
+        let to = self.to.unwrap_or(hi);
+        let step = self
+            .step
+            .unwrap_or(((to - from) / 400.0).max(f64::MIN_POSITIVE));
+        analysis::wavelengths_nm(from, to, step).context("wavelength range (--from, --to, --step)")
+    }
+}
+
 /// Headless commands.
 #[derive(Debug, Subcommand)]
 pub enum Command {
@@ -55,15 +81,9 @@ pub enum Command {
     Spectrum {
         /// The design file (.ron).
         design: PathBuf,
-        /// First wavelength, nm [default: 0.7 × the reference wavelength].
-        #[arg(long)]
-        from: Option<f64>,
-        /// Last wavelength, nm [default: 1.5 × the reference wavelength].
-        #[arg(long)]
-        to: Option<f64>,
-        /// Wavelength step, nm [default: 400 steps over the range].
-        #[arg(long)]
-        step: Option<f64>,
+        /// Wavelengths [default: 0.7 to 1.5 × the reference wavelength, 400 steps].
+        #[command(flatten)]
+        range: Range,
         /// Angle of incidence in degrees, in the medium the light comes from.
         #[arg(long, default_value_t = 0.0)]
         aoi: f64,
@@ -101,15 +121,9 @@ pub enum Command {
     Nk {
         /// Material name (built-in, or defined in --design).
         material: String,
-        /// First wavelength, nm [default: start of the material's data, or 300].
-        #[arg(long)]
-        from: Option<f64>,
-        /// Last wavelength, nm [default: end of the material's data, or 1100].
-        #[arg(long)]
-        to: Option<f64>,
-        /// Wavelength step, nm [default: 400 steps over the range].
-        #[arg(long)]
-        step: Option<f64>,
+        /// Wavelengths [default: the material's data, or 300 to 1100 nm, 400 steps].
+        #[command(flatten)]
+        range: Range,
         /// A design whose own materials may be named as well.
         #[arg(long)]
         design: Option<PathBuf>,
@@ -175,36 +189,18 @@ fn report(warnings: &[Warning], stderr: &mut dyn Write) -> Result<()> {
     Ok(())
 }
 
-/// The default sweep: `from`/`to` if given, else `lo`/`hi`; 400 steps unless `step` is given.
-fn span(
-    from: Option<f64>,
-    to: Option<f64>,
-    step: Option<f64>,
-    lo: f64,
-    hi: f64,
-) -> (f64, f64, f64) {
-    let from = from.unwrap_or(lo);
-    let to = to.unwrap_or(hi);
-    let step = step.unwrap_or(((to - from) / 400.0).max(f64::MIN_POSITIVE));
-    (from, to, step)
-}
-
 /// Runs one command, writing results to `stdout` and warnings to `stderr`.
 pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Result<()> {
     match cmd {
         Command::Spectrum {
             design,
-            from,
-            to,
-            step,
+            range,
             aoi,
             side,
             out,
         } => {
             let d = load_design(&design)?;
-            let (from, to, step) = span(from, to, step, 0.7 * d.reference_nm, 1.5 * d.reference_nm);
-            let wl = analysis::wavelengths_nm(from, to, step)
-                .context("wavelength range (--from, --to, --step)")?;
+            let wl = range.wavelengths_nm(0.7 * d.reference_nm, 1.5 * d.reference_nm)?;
             let s = analysis::spectrum(&d.resolve()?, &wl, aoi, side.into())?;
             report(&s.warnings, stderr)?;
             export::csv::write_spectrum(output(out.as_deref(), stdout)?, &s)?;
@@ -230,9 +226,7 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
         }
         Command::Nk {
             material,
-            from,
-            to,
-            step,
+            range,
             design,
         } => {
             let d = design.as_deref().map(load_design).transpose()?;
@@ -244,9 +238,7 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
             } else {
                 (300.0, 1100.0)
             };
-            let (from, to, step) = span(from, to, step, lo, hi);
-            let wl = analysis::wavelengths_nm(from, to, step)
-                .context("wavelength range (--from, --to, --step)")?;
+            let wl = range.wavelengths_nm(lo, hi)?;
             if let Some(w) = m.range_warning(&wl) {
                 writeln!(stderr, "warning: {w}")?;
             }

@@ -12,7 +12,7 @@
 
 use num_complex::Complex64;
 
-use super::Coherent;
+use super::{Amplitudes, Coherent};
 
 /// The pieces a thick substrate combines, per polarisation.
 #[derive(Clone, Copy, Debug)]
@@ -41,62 +41,47 @@ pub fn internal_transmittance(q: Complex64, thickness_nm: f64, wavelength_nm: f6
     (-2.0 * std::f64::consts::TAU / wavelength_nm * q.im * thickness_nm).exp()
 }
 
+/// Applies `one(first surface, coating from inside, back surface from inside)` to s, then p.
+fn per_pol(
+    c: &ThickSides,
+    one: impl Fn(&Amplitudes, &Amplitudes, &Amplitudes) -> (f64, f64, f64),
+) -> [(f64, f64, f64); 2] {
+    [
+        one(&c.coating_in.s, &c.coating_inside.s, &c.back_inside.s),
+        one(&c.coating_in.p, &c.coating_inside.p, &c.back_inside.p),
+    ]
+}
+
+/// (R, T, A) with the substrate's loss: A by difference (a negative value can only be rounding).
+fn rta(r: f64, t: f64) -> (f64, f64, f64) {
+    (r, t, (1.0 - r - t).max(0.0))
+}
+
 /// (R, T, A) for s then p, for light arriving at the coated front.
 #[must_use]
 pub fn combine_front(sides: &ThickSides) -> [(f64, f64, f64); 2] {
-    let tau = sides.internal;
-    let one = |f: (f64, f64), rb: f64, (rr, tr): (f64, f64)| {
-        let (rf, tf) = f;
-        let den = 1.0 - rb * rr * tau * tau;
-        let r = rf + tf * tf * tau * tau * rr / den;
-        let t = tf * tau * tr / den;
-        // A by difference; a negative value can only be rounding.
-        (r, t, (1.0 - r - t).max(0.0))
-    };
-    let c = sides;
-    [
-        one(
-            (c.coating_in.s.reflectance, c.coating_in.s.transmittance),
-            c.coating_inside.s.reflectance,
-            (c.back_inside.s.reflectance, c.back_inside.s.transmittance),
-        ),
-        one(
-            (c.coating_in.p.reflectance, c.coating_in.p.transmittance),
-            c.coating_inside.p.reflectance,
-            (c.back_inside.p.reflectance, c.back_inside.p.transmittance),
-        ),
-    ]
+    let tau2 = sides.internal * sides.internal;
+    per_pol(sides, |front, inside, back| {
+        let den = 1.0 - inside.reflectance * back.reflectance * tau2;
+        let (rf, tf) = (front.reflectance, front.transmittance);
+        rta(
+            rf + tf * tf * tau2 * back.reflectance / den,
+            tf * sides.internal * back.transmittance / den,
+        )
+    })
 }
 
 /// (R, T, A) for s then p, for light arriving at the bare back surface from the exit medium;
 /// `coating_in` holds that bare surface seen from the exit medium.
 #[must_use]
 pub fn combine_back(sides: &ThickSides) -> [(f64, f64, f64); 2] {
-    let tau = sides.internal;
-    let one = |(re, te): (f64, f64), (rb, tb): (f64, f64), rr: f64| {
-        let den = 1.0 - rb * rr * tau * tau;
-        let r = re + te * te * tau * tau * rb / den;
-        let t = te * tau * tb / den;
-        // A by difference; a negative value can only be rounding.
-        (r, t, (1.0 - r - t).max(0.0))
-    };
-    let c = sides;
-    [
-        one(
-            (c.coating_in.s.reflectance, c.coating_in.s.transmittance),
-            (
-                c.coating_inside.s.reflectance,
-                c.coating_inside.s.transmittance,
-            ),
-            c.back_inside.s.reflectance,
-        ),
-        one(
-            (c.coating_in.p.reflectance, c.coating_in.p.transmittance),
-            (
-                c.coating_inside.p.reflectance,
-                c.coating_inside.p.transmittance,
-            ),
-            c.back_inside.p.reflectance,
-        ),
-    ]
+    let tau2 = sides.internal * sides.internal;
+    per_pol(sides, |bare, inside, back| {
+        let den = 1.0 - inside.reflectance * back.reflectance * tau2;
+        let (re, te) = (bare.reflectance, bare.transmittance);
+        rta(
+            re + te * te * tau2 * inside.reflectance / den,
+            te * sides.internal * inside.transmittance / den,
+        )
+    })
 }
