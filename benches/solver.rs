@@ -85,7 +85,7 @@ fn solver(c: &mut Criterion) {
             }));
             for aoi in [0.0, 45.0] {
                 g.bench_function(format!("aoi={aoi}/threads=1"), |b| {
-                    b.iter(|| one.install(|| spectrum(black_box(&d), &wl, aoi, Side::Front)))
+                    b.iter(|| one.install(|| spectrum(black_box(&d), &wl, aoi, Side::Front)));
                 });
                 if points == 10001 {
                     g.bench_function(
@@ -93,7 +93,7 @@ fn solver(c: &mut Criterion) {
                         |b| {
                             b.iter(|| {
                                 all.install(|| spectrum(black_box(&d), &wl, aoi, Side::Front))
-                            })
+                            });
                         },
                     );
                 }

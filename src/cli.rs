@@ -133,8 +133,14 @@ pub fn main(open_window: impl FnOnce(Option<PathBuf>) -> Result<()>) -> ExitCode
     match result {
         Ok(()) => ExitCode::SUCCESS,
         Err(e) => {
+            // Causes whose text the message already carries are not repeated.
             let msg = e.chain().skip(1).fold(format!("error: {e}"), |msg, cause| {
-                format!("{msg}\n  caused by: {cause}")
+                let cause = cause.to_string();
+                if msg.contains(&cause) {
+                    msg
+                } else {
+                    format!("{msg}\n  caused by: {cause}")
+                }
             });
             log::error!("{msg}");
             // Standard error is the place for this; a failed write there has nowhere to go.
@@ -147,8 +153,9 @@ pub fn main(open_window: impl FnOnce(Option<PathBuf>) -> Result<()>) -> ExitCode
 /// Loads and checks a design file, with the path in any error.
 pub fn load_design(path: &Path) -> Result<Design> {
     let d = file::load(path)?;
-    d.validate()
-        .with_context(|| format!("in {}", path.display()))?;
+    if let Err(e) = d.validate() {
+        bail!("{e} (in {})", path.display());
+    }
     Ok(d)
 }
 
@@ -196,7 +203,8 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
         } => {
             let d = load_design(&design)?;
             let (from, to, step) = span(from, to, step, 0.7 * d.reference_nm, 1.5 * d.reference_nm);
-            let wl = analysis::wavelengths_nm(from, to, step).context("wavelength range")?;
+            let wl = analysis::wavelengths_nm(from, to, step)
+                .context("wavelength range (--from, --to, --step)")?;
             let s = analysis::spectrum(&d.resolve()?, &wl, aoi, side.into())?;
             report(&s.warnings, stderr)?;
             export::csv::write_spectrum(output(out.as_deref(), stdout)?, &s)?;
@@ -214,7 +222,8 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
             if !(wavelength.is_finite() && wavelength > 0.0) {
                 bail!("--wavelength must be a positive number of nm, got {wavelength}");
             }
-            let angles = analysis::angles_deg(from, to, step).context("angle range")?;
+            let angles = analysis::angles_deg(from, to, step)
+                .context("angle range (--from, --to, --step)")?;
             let s = analysis::angle_scan(&d.resolve()?, wavelength, &angles, side.into())?;
             report(&s.warnings, stderr)?;
             export::csv::write_angles(output(out.as_deref(), stdout)?, &s)?;
@@ -236,7 +245,8 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
                 (300.0, 1100.0)
             };
             let (from, to, step) = span(from, to, step, lo, hi);
-            let wl = analysis::wavelengths_nm(from, to, step).context("wavelength range")?;
+            let wl = analysis::wavelengths_nm(from, to, step)
+                .context("wavelength range (--from, --to, --step)")?;
             if let Some(w) = m.range_warning(&wl) {
                 writeln!(stderr, "warning: {w}")?;
             }

@@ -56,13 +56,13 @@ fn fresnel_glass_1_52_at_several_angles() {
 fn brewster_angle_kills_p_reflection() {
     // tan θB = n2/n1; R_s at θB (physics-checks §1.2)
     for (n1, n2, theta_b, rs) in [
-        (1.0, 1.5, 56.309_932_474_0, 0.147_928_994_1),
+        (1.0f64, 1.5f64, 56.309_932_474_0, 0.147_928_994_1),
         (1.0, 1.52, 56.659_292_653_5, 0.156_691_999_4),
         (1.5, 1.0, 33.690_067_526_0, 0.147_928_994_1),
         (1.0, 2.35, 66.948_699_083_5, 0.480_760_718_5),
     ] {
-        assert_relative_eq!((n2 / n1 as f64).atan() / DEG, theta_b, epsilon = 1e-9);
-        let r = stack(re(n1), &[], re(n2), 550.0, (n2 / n1 as f64).atan() / DEG);
+        assert_relative_eq!((n2 / n1).atan() / DEG, theta_b, epsilon = 1e-9);
+        let r = stack(re(n1), &[], re(n2), 550.0, (n2 / n1).atan() / DEG);
         assert!(r.r_p < 1e-28, "R_p at Brewster {n1}→{n2}: {}", r.r_p);
         assert_relative_eq!(r.r_s, rs, epsilon = 1e-10);
     }
@@ -284,7 +284,7 @@ fn stop_band_edges_match_the_closed_form() {
     for (nh, nl, lambda0, lo, hi) in [
         (2.35, 1.38, 550.0, 471.099_951, 660.645_175),
         (2.35, 1.45, 550.0, 477.337_402, 648.756_900),
-        (2.10, 1.45, 1064.0, 952.359_203, 1205.290_838),
+        (2.10, 1.45, 1064.0, 952.359_203, 1_205.290_838),
         (4.0, 2.2, 10_000.0, 8420.874, 12_308.074),
     ] {
         let long = edge(nh, nl, lambda0, lambda0 * 1.01, hi * 1.05);

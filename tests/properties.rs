@@ -8,7 +8,7 @@ use approx::assert_relative_eq;
 use common::{re, stack, stack_side};
 use num_complex::Complex64;
 use proptest::prelude::*;
-use stackwise::optics::{Side, StackAt, Tilted, solve};
+use stackwise::optics::{Scratch4, Side, StackAt, Tilted, solve, solve4};
 
 /// Recursive reflection/transmission (Rouard's method), written independently of the matrix
 /// code: starting at the substrate, each layer j between the medium above (a) and its own
@@ -118,6 +118,54 @@ proptest! {
         let b = stack(re(1.0), &split, re(1.52), wl, aoi);
         prop_assert!((a.amp_r_s - b.amp_r_s).norm() < 1e-12 && (a.amp_r_p - b.amp_r_p).norm() < 1e-12);
         prop_assert!((a.t_s - b.t_s).abs() < 1e-12 && (a.t_p - b.t_p).abs() < 1e-12);
+    }
+
+    #[test]
+    fn four_lanes_agree_with_one_point_at_a_time(
+        ls in layers(14),
+        lane_n in prop::array::uniform4(index()),
+        wl in prop::array::uniform4(300.0f64..2000.0),
+        aoi in prop::array::uniform4(0.0f64..1.5),
+        mm in prop::option::of(0.1f64..10.0),
+        back in any::<bool>(),
+    ) {
+        // Each lane gets its own index for the first material, wavelength and angle.
+        let idx: Vec<(usize, f64)> = ls.iter().enumerate().map(|(i, l)| (i, l.1)).collect();
+        let mats: Vec<[Complex64; 4]> = ls
+            .iter()
+            .enumerate()
+            .map(|(i, l)| if i == 0 { lane_n } else { [l.0; 4] })
+            .collect();
+        let per_lane: Vec<Vec<Complex64>> =
+            (0..4).map(|k| mats.iter().map(|m| m[k]).collect()).collect();
+        let stacks: Vec<StackAt<'_>> = per_lane
+            .iter()
+            .map(|m| StackAt {
+                incident: re(1.0),
+                substrate: Complex64::new(1.52, 1e-7),
+                exit: re(1.33),
+                materials: m,
+                layers: &idx,
+                substrate_mm: mm,
+            })
+            .collect();
+        let side = if back { Side::Back } else { Side::Front };
+        let four = solve4(
+            [&stacks[0], &stacks[1], &stacks[2], &stacks[3]],
+            wl,
+            aoi,
+            side,
+            &mut Scratch4::default(),
+        );
+        for k in 0..4 {
+            let one = solve(&stacks[k], wl[k], aoi[k], side, &mut Vec::new());
+            let f = &four[k];
+            for (a, b) in [(one.r_s, f.r_s), (one.r_p, f.r_p), (one.t_s, f.t_s), (one.t_p, f.t_p), (one.a_s, f.a_s), (one.a_p, f.a_p)] {
+                prop_assert!((a - b).abs() < 1e-12, "lane {k}: {one:?} vs {f:?}");
+            }
+            prop_assert!((one.amp_r_s - f.amp_r_s).norm() < 1e-12 && (one.amp_r_p - f.amp_r_p).norm() < 1e-12);
+            prop_assert!((one.amp_t_s - f.amp_t_s).norm() < 1e-12 && (one.amp_t_p - f.amp_t_p).norm() < 1e-12);
+        }
     }
 
     #[test]

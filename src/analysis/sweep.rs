@@ -7,7 +7,7 @@ use rayon::prelude::*;
 
 use crate::design::ResolvedDesign;
 use crate::material::{Material, MaterialError, RangeWarning};
-use crate::optics::{Response, Side, StackAt, Tilted, solve};
+use crate::optics::{Response, Scratch4, Side, StackAt, solve4};
 
 /// Sweeps with at least this many layer·point products run on all cores.
 pub const PARALLEL_MIN_WORK: usize = 50_000;
@@ -314,22 +314,30 @@ fn warnings(d: &ResolvedDesign, wavelengths_nm: &[f64], indices: &[Complex64]) -
     out
 }
 
-/// Runs `solve_one(i, scratch)` for every point, on all cores when the work is large.
+/// Runs `solve_four(first, scratch)` for every group of four points (points past the end
+/// repeat the last one and are dropped), on all cores when the work is large.
 fn run(
     points: usize,
     layers: usize,
-    solve_one: impl Fn(usize, &mut Vec<Tilted>) -> Response + Sync,
+    solve_four: impl Fn([usize; 4], &mut Scratch4) -> [Response; 4] + Sync,
 ) -> Vec<Response> {
     let mut out = vec![Response::default(); points];
+    let lanes = |first: usize| std::array::from_fn(|k| (first + k).min(points - 1));
+    let fill = |chunk: &mut [Response], first: usize, scratch: &mut Scratch4| {
+        let four = solve_four(lanes(first), scratch);
+        chunk.copy_from_slice(&four[..chunk.len()]);
+    };
     if points * layers.max(1) >= PARALLEL_MIN_WORK {
-        out.par_iter_mut()
+        out.par_chunks_mut(4)
             .enumerate()
-            .with_min_len(64)
-            .for_each_init(Vec::new, |scratch, (i, r)| *r = solve_one(i, scratch));
+            .with_min_len(16)
+            .for_each_init(Scratch4::default, |scratch, (c, chunk)| {
+                fill(chunk, 4 * c, scratch);
+            });
     } else {
-        let mut scratch = Vec::new();
-        for (i, r) in out.iter_mut().enumerate() {
-            *r = solve_one(i, &mut scratch);
+        let mut scratch = Scratch4::default();
+        for (c, chunk) in out.chunks_mut(4).enumerate() {
+            fill(chunk, 4 * c, &mut scratch);
         }
     }
     out
@@ -360,9 +368,10 @@ pub fn spectrum(
     let table = index_table(&mats, wavelengths_nm)?;
     let width = mats.len();
     let aoi = aoi_deg.to_radians();
-    let responses = run(wavelengths_nm.len(), d.layers.len(), |i, scratch| {
-        let row = &table[i * width..(i + 1) * width];
-        solve(&stack_at(d, row), wavelengths_nm[i], aoi, side, scratch)
+    let responses = run(wavelengths_nm.len(), d.layers.len(), |lanes, scratch| {
+        let stacks = lanes.map(|i| stack_at(d, &table[i * width..(i + 1) * width]));
+        let wl = lanes.map(|i| wavelengths_nm[i]);
+        solve4(stacks.each_ref(), wl, [aoi; 4], side, scratch)
     });
     Ok(Spectrum {
         wavelength_nm: wavelengths_nm.to_vec(),
@@ -385,14 +394,10 @@ pub fn angle_scan(
     }
     let mats = all_materials(d);
     let table = index_table(&mats, &[wavelength_nm])?;
-    let responses = run(aoi_deg.len(), d.layers.len(), |i, scratch| {
-        solve(
-            &stack_at(d, &table),
-            wavelength_nm,
-            aoi_deg[i].to_radians(),
-            side,
-            scratch,
-        )
+    let stack = stack_at(d, &table);
+    let responses = run(aoi_deg.len(), d.layers.len(), |lanes, scratch| {
+        let aoi = lanes.map(|i| aoi_deg[i].to_radians());
+        solve4([&stack; 4], [wavelength_nm; 4], aoi, side, scratch)
     });
     Ok(AngleScan {
         aoi_deg: aoi_deg.to_vec(),

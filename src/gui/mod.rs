@@ -9,6 +9,7 @@
 pub mod compute;
 pub mod document;
 pub mod history;
+pub mod materials;
 pub mod plots;
 pub mod stack;
 pub mod theme;
@@ -21,7 +22,6 @@ use anyhow::Result;
 use egui::{Key, KeyboardShortcut, Modifiers, RichText};
 
 use crate::design::{Design, Layer, Nm, file};
-use crate::material::builtin;
 
 pub use compute::{Sweep, SweepCache, SweepResult};
 pub use document::{Command, CommandError, Document};
@@ -73,9 +73,23 @@ struct Prefs {
     recent: Vec<PathBuf>,
 }
 
-/// A demo design: Air | four-layer TiO2/SiO2 anti-reflection coating | fused silica.
+/// The example design shown when no file is given.
+const DEMO_RON: &str = include_str!("../../designs/camera-window-ar.ron");
+
+/// The demo design: the camera-window AR example, or (should that ever fail to read) a
+/// four-layer TiO2/SiO2 anti-reflection coating on fused silica built here.
 #[must_use]
 pub fn demo_design() -> Design {
+    match file::from_ron_str(DEMO_RON) {
+        Ok(d) => d,
+        Err(e) => {
+            log::error!("the embedded demo design does not read: {e}");
+            fallback_demo()
+        }
+    }
+}
+
+fn fallback_demo() -> Design {
     let mut d = Design::new_empty("Demo: visible AR on fused silica");
     d.reference_nm = 550.0;
     // Substrate side first: a thin high/low pair, then a thick high and a quarter-wave low.
@@ -146,6 +160,7 @@ pub struct App {
     autosaved_revision: Option<u64>,
     allow_close: bool,
     show_materials: bool,
+    browser: materials::BrowserState,
     title_sent: String,
     commands: Vec<Command>,
 }
@@ -193,6 +208,7 @@ impl App {
             autosaved_revision: None,
             allow_close: false,
             show_materials: false,
+            browser: materials::BrowserState::default(),
             title_sent: String::new(),
             commands: Vec::new(),
         }
@@ -695,54 +711,27 @@ impl App {
         }
         if self.show_materials {
             let mut open = true;
+            let mut action = None;
             egui::Window::new("Materials")
                 .open(&mut open)
-                .default_size([560.0, 420.0])
-                .show(ctx, |ui| materials_list_ui(ui, &self.doc.design));
+                .default_size([640.0, 560.0])
+                .show(ctx, |ui| {
+                    egui::ScrollArea::vertical().show(ui, |ui| {
+                        action = materials::materials_ui(ui, &mut self.browser, &self.doc.design);
+                    });
+                });
             self.show_materials = open;
+            if let Some(a) = action {
+                self.push(match a {
+                    materials::BrowserAction::AddMaterial(m) => Command::AddMaterial(m),
+                    materials::BrowserAction::ReplaceMaterial { old_name, material } => {
+                        Command::ReplaceMaterial { old_name, material }
+                    }
+                    materials::BrowserAction::RemoveMaterial(n) => Command::RemoveMaterial(n),
+                });
+            }
         }
     }
-}
-
-/// A read-only list of the design's own and the built-in materials. The editable materials
-/// browser plugs in here (its actions map to [`Command::AddMaterial`],
-/// [`Command::ReplaceMaterial`] and [`Command::RemoveMaterial`]).
-fn materials_list_ui(ui: &mut egui::Ui, design: &Design) {
-    ui.label(RichText::new("Read-only for now; editing arrives with the materials panel.").weak());
-    egui::ScrollArea::vertical().show(ui, |ui| {
-        egui::Grid::new("materials-list")
-            .striped(true)
-            .num_columns(4)
-            .show(ui, |ui| {
-                ui.strong("Name");
-                ui.strong("Model");
-                ui.strong("Range (nm)");
-                ui.strong("Source");
-                ui.end_row();
-                let mine = design.materials.iter().map(|m| (m, true));
-                let built = builtin()
-                    .iter()
-                    .filter(|b| !design.materials.iter().any(|m| m.name == b.name))
-                    .map(|m| (m, false));
-                for (m, own) in mine.chain(built) {
-                    let name = if own {
-                        format!("{} (this design)", m.name)
-                    } else {
-                        m.name.clone()
-                    };
-                    ui.label(name).on_hover_text(stack::material_info(m));
-                    ui.label(m.model.kind_name());
-                    let (lo, hi) = m.valid_range_nm();
-                    ui.label(if hi.is_finite() {
-                        format!("{lo}–{hi}")
-                    } else {
-                        "no limit".into()
-                    });
-                    ui.add(egui::Label::new(&m.source).truncate());
-                    ui.end_row();
-                }
-            });
-    });
 }
 
 impl eframe::App for App {

@@ -4,6 +4,7 @@
 //! Sign convention: N = n + i k with k >= 0 for absorption, as users type it (see
 //! [`crate::optics`]).
 
+pub mod import;
 mod library;
 mod model;
 

@@ -29,6 +29,7 @@
 //!   coherent sub-problems the substrate counts with its real index; its k acts through that
 //!   path loss only.
 
+mod lanes;
 pub mod thick;
 mod tmm;
 
@@ -114,6 +115,120 @@ impl Response {
     }
 }
 
+/// The media of the coherent problems one point needs, for one Snell invariant.
+struct Setup {
+    snell: f64,
+    /// Incident and exit media of the coating seen from the incident medium.
+    front: (Tilted, Tilted),
+    /// Incident and exit media of the coating seen from inside the substrate.
+    back: (Tilted, Tilted),
+    /// Light from the front needs the `front` problem.
+    need_front: bool,
+    /// Light from the back, and every thick substrate, needs the `back` problem.
+    need_back: bool,
+}
+
+impl Setup {
+    fn new(stack: &StackAt<'_>, aoi_rad: f64, side: Side) -> Self {
+        let real = |n: Complex64| Complex64::new(n.re, 0.0);
+        // The medium the light starts in fixes the Snell invariant.
+        let from = match (side, stack.substrate_mm) {
+            (Side::Front, _) => stack.incident,
+            (Side::Back, Some(_)) => stack.exit,
+            (Side::Back, None) => stack.substrate,
+        };
+        let snell = from.re * aoi_rad.sin();
+        let thick = stack.substrate_mm.is_some();
+        // A thick substrate counts with its real index in the coherent problems.
+        let sub_as_exit = if thick {
+            real(stack.substrate)
+        } else {
+            stack.substrate
+        };
+        Self {
+            snell,
+            front: (
+                Tilted::new(real(stack.incident), snell),
+                Tilted::new(sub_as_exit, snell),
+            ),
+            back: (
+                Tilted::new(real(stack.substrate), snell),
+                Tilted::new(stack.incident, snell),
+            ),
+            need_front: side == Side::Front,
+            need_back: side == Side::Back || thick,
+        }
+    }
+
+    /// Combines the coating's coherent results with the substrate into the response.
+    fn assemble(
+        &self,
+        stack: &StackAt<'_>,
+        wavelength_nm: f64,
+        side: Side,
+        front: Option<Coherent>,
+        back: Option<Coherent>,
+    ) -> Response {
+        let (front, back) = (front.unwrap_or_default(), back.unwrap_or_default());
+        let Some(substrate_mm) = stack.substrate_mm else {
+            return match side {
+                Side::Front => front.response(),
+                Side::Back => back.response(),
+            };
+        };
+        let snell = self.snell;
+        let sub_real = Tilted::new(Complex64::new(stack.substrate.re, 0.0), snell);
+        let internal = thick::internal_transmittance(
+            Tilted::new(stack.substrate, snell).q,
+            substrate_mm * 1e6,
+            wavelength_nm,
+        );
+        let none = std::iter::empty();
+        // The bare back surface seen from inside the substrate.
+        let back_inside = coherent(
+            &sub_real,
+            none.clone(),
+            &Tilted::new(stack.exit, snell),
+            wavelength_nm,
+        );
+        let (coating, outcome) = match side {
+            Side::Front => {
+                let sides = ThickSides {
+                    coating_in: front,
+                    coating_inside: back,
+                    back_inside,
+                    internal,
+                };
+                (front, combine_front(&sides))
+            }
+            Side::Back => {
+                let exit_in = Tilted::new(Complex64::new(stack.exit.re, 0.0), snell);
+                let coating_in = coherent(&exit_in, none, &sub_real, wavelength_nm);
+                let sides = ThickSides {
+                    coating_in,
+                    coating_inside: back,
+                    back_inside,
+                    internal,
+                };
+                (back, combine_back(&sides))
+            }
+        };
+        let [(r_s, t_s, a_s), (r_p, t_p, a_p)] = outcome;
+        Response {
+            r_s,
+            r_p,
+            t_s,
+            t_p,
+            a_s,
+            a_p,
+            amp_r_s: coating.s.r,
+            amp_r_p: coating.p.r,
+            amp_t_s: coating.s.t,
+            amp_t_p: coating.p.t,
+        }
+    }
+}
+
 /// Solves one stack at one wavelength and angle of incidence (radians, in the medium the light
 /// arrives from). `scratch` is reused between calls so the hot loop does not allocate.
 ///
@@ -137,90 +252,81 @@ pub fn solve(
     side: Side,
     scratch: &mut Vec<Tilted>,
 ) -> Response {
-    let real = |n: Complex64| Complex64::new(n.re, 0.0);
-    // The medium the light starts in fixes the Snell invariant.
-    let from = match (side, stack.substrate_mm) {
-        (Side::Front, _) => stack.incident,
-        (Side::Back, Some(_)) => stack.exit,
-        (Side::Back, None) => stack.substrate,
-    };
-    let snell = from.re * aoi_rad.sin();
+    let setup = Setup::new(stack, aoi_rad, side);
     scratch.clear();
-    scratch.extend(stack.materials.iter().map(|&n| Tilted::new(n, snell)));
+    scratch.extend(stack.materials.iter().map(|&n| Tilted::new(n, setup.snell)));
     let mats: &[Tilted] = scratch;
-    let forward = || stack.layers.iter().map(|&(m, d)| (&mats[m], d));
-    let backward = || stack.layers.iter().rev().map(|&(m, d)| (&mats[m], d));
-    let inc = Tilted::new(real(stack.incident), snell);
+    let (fi, fs) = &setup.front;
+    let front = setup.need_front.then(|| {
+        coherent(
+            fi,
+            stack.layers.iter().map(|&(m, d)| (&mats[m], d)),
+            fs,
+            wavelength_nm,
+        )
+    });
+    let (bi, bs) = &setup.back;
+    let back = setup.need_back.then(|| {
+        coherent(
+            bi,
+            stack.layers.iter().rev().map(|&(m, d)| (&mats[m], d)),
+            bs,
+            wavelength_nm,
+        )
+    });
+    setup.assemble(stack, wavelength_nm, side, front, back)
+}
 
-    let Some(substrate_mm) = stack.substrate_mm else {
-        let c = match side {
-            Side::Front => coherent(
-                &inc,
-                forward(),
-                &Tilted::new(stack.substrate, snell),
-                wavelength_nm,
-            ),
-            Side::Back => coherent(
-                &Tilted::new(real(stack.substrate), snell),
-                backward(),
-                &Tilted::new(stack.incident, snell),
-                wavelength_nm,
-            ),
-        };
-        return c.response();
-    };
+/// Reusable buffers for [`solve4`].
+#[derive(Debug, Default)]
+pub struct Scratch4 {
+    lanes: Vec<[Tilted; 4]>,
+    packed: Vec<lanes::Tilted4>,
+}
 
-    let sub_real = Tilted::new(real(stack.substrate), snell);
-    let exit = Tilted::new(stack.exit, snell);
-    let internal = thick::internal_transmittance(
-        Tilted::new(stack.substrate, snell).q,
-        substrate_mm * 1e6,
-        wavelength_nm,
+/// [`solve`] for four points at once in SIMD lanes — four wavelengths of a spectrum or four
+/// angles of a scan. The four stacks must share `layers` (the same design); their indices,
+/// wavelengths and angles may differ. Agrees with [`solve`] to rounding.
+pub fn solve4(
+    stacks: [&StackAt<'_>; 4],
+    wavelength_nm: [f64; 4],
+    aoi_rad: [f64; 4],
+    side: Side,
+    scratch: &mut Scratch4,
+) -> [Response; 4] {
+    let setups: [Setup; 4] = std::array::from_fn(|i| Setup::new(stacks[i], aoi_rad[i], side));
+    let layers = stacks[0].layers;
+    scratch.lanes.clear();
+    scratch
+        .lanes
+        .extend((0..stacks[0].materials.len()).map(|m| {
+            std::array::from_fn(|i| Tilted::new(stacks[i].materials[m], setups[i].snell))
+        }));
+    scratch.packed.clear();
+    scratch.packed.extend(
+        scratch
+            .lanes
+            .iter()
+            .map(|l| lanes::Tilted4::gather(l.each_ref())),
     );
-    let none = std::iter::empty();
-    // The coating seen from inside the substrate, towards the incident medium.
-    let coat_back = coherent(
-        &sub_real,
-        backward(),
-        &Tilted::new(stack.incident, snell),
-        wavelength_nm,
-    );
-    // The bare back surface seen from inside the substrate.
-    let back_surface = coherent(&sub_real, none.clone(), &exit, wavelength_nm);
-    let (coating, outcome) = match side {
-        Side::Front => {
-            let coat_front = coherent(&inc, forward(), &sub_real, wavelength_nm);
-            let sides = ThickSides {
-                coating_in: coat_front,
-                coating_inside: coat_back,
-                back_inside: back_surface,
-                internal,
-            };
-            (coat_front, combine_front(&sides))
-        }
-        Side::Back => {
-            let exit_in = Tilted::new(real(stack.exit), snell);
-            let back_from_exit = coherent(&exit_in, none, &sub_real, wavelength_nm);
-            let sides = ThickSides {
-                coating_in: back_from_exit,
-                coating_inside: coat_back,
-                back_inside: back_surface,
-                internal,
-            };
-            (coat_back, combine_back(&sides))
-        }
-    };
-    let [(r_s, t_s, a_s), (r_p, t_p, a_p)] = outcome;
-    Response {
-        r_s,
-        r_p,
-        t_s,
-        t_p,
-        a_s,
-        a_p,
-        amp_r_s: coating.s.r,
-        amp_r_p: coating.p.r,
-        amp_t_s: coating.s.t,
-        amp_t_p: coating.p.t,
-    }
+    let mats: &[lanes::Tilted4] = &scratch.packed;
+    let inc = |p: fn(&Setup) -> &(Tilted, Tilted)| setups.each_ref().map(|s| &p(s).0);
+    let sub = |p: fn(&Setup) -> &(Tilted, Tilted)| setups.each_ref().map(|s| &p(s).1);
+    let front = setups[0].need_front.then(|| {
+        let layers = layers.iter().map(|&(k, d)| (&mats[k], d));
+        lanes::coherent4(inc(|s| &s.front), layers, sub(|s| &s.front), wavelength_nm)
+    });
+    let back = setups[0].need_back.then(|| {
+        let layers = layers.iter().rev().map(|&(k, d)| (&mats[k], d));
+        lanes::coherent4(inc(|s| &s.back), layers, sub(|s| &s.back), wavelength_nm)
+    });
+    std::array::from_fn(|i| {
+        setups[i].assemble(
+            stacks[i],
+            wavelength_nm[i],
+            side,
+            front.map(|f| f[i]),
+            back.map(|b| b[i]),
+        )
+    })
 }

@@ -50,7 +50,8 @@ pub fn combine_front(sides: &ThickSides) -> [(f64, f64, f64); 2] {
         let den = 1.0 - rb * rr * tau * tau;
         let r = rf + tf * tf * tau * tau * rr / den;
         let t = tf * tau * tr / den;
-        (r, t, 1.0 - r - t)
+        // A by difference; a negative value can only be rounding.
+        (r, t, (1.0 - r - t).max(0.0))
     };
     let c = sides;
     [
@@ -76,7 +77,8 @@ pub fn combine_back(sides: &ThickSides) -> [(f64, f64, f64); 2] {
         let den = 1.0 - rb * rr * tau * tau;
         let r = re + te * te * tau * tau * rb / den;
         let t = te * tau * tb / den;
-        (r, t, 1.0 - r - t)
+        // A by difference; a negative value can only be rounding.
+        (r, t, (1.0 - r - t).max(0.0))
     };
     let c = sides;
     [

@@ -21,8 +21,8 @@ pub struct Tilted {
     pub eta_s: Complex64,
     /// p admittance η_p = N² / q.
     pub eta_p: Complex64,
-    inv_eta_s: Complex64,
-    inv_eta_p: Complex64,
+    pub(crate) inv_eta_s: Complex64,
+    pub(crate) inv_eta_p: Complex64,
 }
 
 impl Tilted {
@@ -171,7 +171,7 @@ pub fn coherent<'a>(
 
 /// R, T, A and amplitudes from [B; C]; `eta0` is the polarisation's Re(η₀), `t_factor` turns
 /// the tangential-field ratio into the electric-field ratio, `scale2` = e^(−2·log scale).
-fn finish(
+pub(crate) fn finish(
     eta0: f64,
     b: Complex64,
     c: Complex64,

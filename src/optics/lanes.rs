@@ -1,0 +1,141 @@
+//! The characteristic-matrix loop for four independent points at once (four wavelengths, or
+//! four angles), in SIMD lanes. Same mathematics as [`super::coherent`]; each layer's matrix is
+//! always scaled by e^(−Im δ) (so nothing overflows and no division is needed), and the scale
+//! is carried as a logarithm to the end.
+
+use num_complex::Complex64;
+use wide::f64x4;
+
+use super::tmm::{Coherent, Tilted, finish};
+
+/// Four complex numbers, real and imaginary parts in separate lanes.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct Cx4 {
+    re: f64x4,
+    im: f64x4,
+}
+
+impl Cx4 {
+    fn gather(z: [Complex64; 4]) -> Self {
+        Self {
+            re: f64x4::from(z.map(|z| z.re)),
+            im: f64x4::from(z.map(|z| z.im)),
+        }
+    }
+
+    fn lane(self, i: usize) -> Complex64 {
+        Complex64::new(self.re.to_array()[i], self.im.to_array()[i])
+    }
+
+    #[inline]
+    fn mul(self, o: Self) -> Self {
+        Self {
+            re: self.re * o.re - self.im * o.im,
+            im: self.re * o.im + self.im * o.re,
+        }
+    }
+
+    #[inline]
+    fn sub(self, o: Self) -> Self {
+        Self {
+            re: self.re - o.re,
+            im: self.im - o.im,
+        }
+    }
+}
+
+/// A medium at four points: q and the admittances per lane.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct Tilted4 {
+    q: Cx4,
+    eta_s: Cx4,
+    inv_eta_s: Cx4,
+    eta_p: Cx4,
+    inv_eta_p: Cx4,
+    /// q is real in every lane: the layer neither absorbs nor is evanescent (no exp needed).
+    real: bool,
+}
+
+impl Tilted4 {
+    pub(crate) fn gather(t: [&Tilted; 4]) -> Self {
+        Self {
+            q: Cx4::gather(t.map(|t| t.q)),
+            eta_s: Cx4::gather(t.map(|t| t.eta_s)),
+            inv_eta_s: Cx4::gather(t.map(|t| t.inv_eta_s)),
+            eta_p: Cx4::gather(t.map(|t| t.eta_p)),
+            inv_eta_p: Cx4::gather(t.map(|t| t.inv_eta_p)),
+            real: t.iter().all(|t| t.q.im == 0.0),
+        }
+    }
+}
+
+/// [`super::coherent`] for four points: `incident`, `substrate` and each layer's medium are
+/// given per lane, the thicknesses are shared.
+pub(crate) fn coherent4<'a>(
+    incident: [&Tilted; 4],
+    layers: impl Iterator<Item = (&'a Tilted4, f64)>,
+    substrate: [&Tilted; 4],
+    wavelength_nm: [f64; 4],
+) -> [Coherent; 4] {
+    let k0 = f64x4::from(wavelength_nm.map(|w| std::f64::consts::TAU / w));
+    let one = Cx4 {
+        re: f64x4::ONE,
+        im: f64x4::ZERO,
+    };
+    let half = f64x4::splat(0.5);
+    let (mut bs, mut cs) = (one, Cx4::gather(substrate.map(|t| t.eta_s)));
+    let (mut bp, mut cp) = (one, Cx4::gather(substrate.map(|t| t.eta_p)));
+    let mut log_scale = f64x4::ZERO;
+    for (m, d_nm) in layers {
+        let kd = k0 * f64x4::splat(d_nm);
+        let a = m.q.re * kd;
+        let (sin_a, cos_a) = a.sin_cos();
+        // cosh b · e^(−b) and sinh b · e^(−b), with b = Im δ >= 0 (q is on the decaying branch)
+        let (ch, sh) = if m.real {
+            (f64x4::ONE, f64x4::ZERO)
+        } else {
+            let b = m.q.im * kd;
+            let em = (-b).exp();
+            let em2 = em * em;
+            log_scale += b;
+            ((f64x4::ONE + em2) * half, (f64x4::ONE - em2) * half)
+        };
+        // cos(a + ib) = cos a cosh b − i sin a sinh b; i sin(a + ib) = −cos a sinh b + i sin a cosh b
+        let cos_d = Cx4 {
+            re: cos_a * ch,
+            im: -(sin_a * sh),
+        };
+        let i_sin_d = Cx4 {
+            re: -(cos_a * sh),
+            im: sin_a * ch,
+        };
+        let (xs, ys) = (i_sin_d.mul(m.inv_eta_s), i_sin_d.mul(m.eta_s));
+        (bs, cs) = (cos_d.mul(bs).sub(xs.mul(cs)), cos_d.mul(cs).sub(ys.mul(bs)));
+        let (xp, yp) = (i_sin_d.mul(m.inv_eta_p), i_sin_d.mul(m.eta_p));
+        (bp, cp) = (cos_d.mul(bp).sub(xp.mul(cp)), cos_d.mul(cp).sub(yp.mul(bp)));
+    }
+    let log_scale = log_scale.to_array();
+    std::array::from_fn(|i| {
+        let (inc, sub) = (incident[i], substrate[i]);
+        let cos_ratio = (inc.q / inc.n) / (sub.q / sub.n);
+        let scale2 = (-2.0 * log_scale[i]).exp();
+        Coherent {
+            s: finish(
+                inc.eta_s.re,
+                bs.lane(i),
+                cs.lane(i),
+                sub.eta_s,
+                Complex64::ONE,
+                scale2,
+            ),
+            p: finish(
+                inc.eta_p.re,
+                bp.lane(i),
+                cp.lane(i),
+                sub.eta_p,
+                cos_ratio,
+                scale2,
+            ),
+        }
+    })
+}
