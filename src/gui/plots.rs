@@ -354,10 +354,6 @@ pub fn spectrum_ui(
                 .suffix(" nm"),
         )
         .labelled_by(l.id);
-        ui.separator();
-        let l = ui.label("angle of incidence");
-        ui.add(egui::Slider::new(&mut s.aoi_deg, 0.0..=89.0).suffix("°"))
-            .labelled_by(l.id);
     });
     ui.horizontal_wrapped(|ui| {
         ui.label("x:");
@@ -368,6 +364,10 @@ pub fn spectrum_ui(
         ui.label("y:");
         ui.selectable_value(&mut s.y_axis, YAxis::Percent, "linear %");
         ui.selectable_value(&mut s.y_axis, YAxis::OpticalDensity, "optical density");
+        ui.separator();
+        let l = ui.label("angle of incidence");
+        ui.add(egui::Slider::new(&mut s.aoi_deg, 0.0..=89.0).suffix("°"))
+            .labelled_by(l.id);
     });
     if s.y_axis == YAxis::OpticalDensity {
         ui.colored_label(ui.visuals().warn_fg_color, OD_CAUTION);
