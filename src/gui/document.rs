@@ -1,0 +1,698 @@
+//! The open document and the commands that change it.
+//!
+//! Panels never mutate the design: they push [`Command`]s, and [`Document::apply`] — the one
+//! mutator, testable without egui — checks and carries them out. A refused command leaves the
+//! document as it was and says why.
+//!
+//! Layer indices in commands are 0-based positions in [`Design::layers`] (layer 1, on the
+//! substrate, is index 0); messages name layers by their 1-based number, as the table does.
+
+use std::path::{Path, PathBuf};
+
+use crate::design::{Design, DesignError, DesignFileError, Layer, Nm, file};
+use crate::material::{Catalog, Material, MaterialError};
+
+use super::history::History;
+
+/// A change to the document, or a file action on it.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Command {
+    /// Sets a layer's physical thickness (nm).
+    SetThickness {
+        /// 0-based layer index.
+        layer: usize,
+        /// New thickness in nm (must be finite and >= 0).
+        nm: f64,
+    },
+    /// Sets a layer's thickness in quarter waves at the reference wavelength.
+    SetQwot {
+        /// 0-based layer index.
+        layer: usize,
+        /// Quarter-wave optical thickness (must be finite and >= 0).
+        qwot: f64,
+    },
+    /// Changes a layer's material (keeps its physical thickness).
+    SetMaterial {
+        /// 0-based layer index.
+        layer: usize,
+        /// A design or built-in material name.
+        name: String,
+    },
+    /// Inserts a layer so that it gets index `at` (`at == len` appends on the outside).
+    InsertLayer {
+        /// 0-based index the new layer will have.
+        at: usize,
+        /// The layer.
+        layer: Layer,
+    },
+    /// Inserts a copy of a layer just outside it.
+    DuplicateLayer(usize),
+    /// Removes the layers at these 0-based indices.
+    RemoveLayers(Vec<usize>),
+    /// Moves a layer from one index to another.
+    MoveLayer {
+        /// 0-based index of the layer to move.
+        from: usize,
+        /// 0-based index it will have afterwards.
+        to: usize,
+    },
+    /// Multiplies the thickness of the given layers by `factor` (> 0).
+    ScaleLayers {
+        /// 0-based indices.
+        layers: Vec<usize>,
+        /// Scale factor, finite and > 0.
+        factor: f64,
+    },
+    /// Flips a layer's lock.
+    ToggleLock(usize),
+    /// Changes the incident medium.
+    SetIncident(String),
+    /// Changes the substrate material.
+    SetSubstrate(String),
+    /// Sets the substrate thickness in mm; `None` = semi-infinite (no back surface).
+    SetSubstrateMm(Option<f64>),
+    /// Changes the exit medium.
+    SetExit(String),
+    /// Changes the reference wavelength (nm) for QWOTs; physical thicknesses stay.
+    SetReference(f64),
+    /// Replaces all layers (e.g. built from stack notation).
+    ReplaceLayers(Vec<Layer>),
+    /// Renames the design.
+    SetName(String),
+    /// Adds a material to the design's own list.
+    AddMaterial(Material),
+    /// Replaces one of the design's own materials (or overrides a built-in); layers and media
+    /// that used `old_name` follow a rename.
+    ReplaceMaterial {
+        /// The name it had.
+        old_name: String,
+        /// The new definition.
+        material: Material,
+    },
+    /// Removes one of the design's own materials; refused while anything uses it.
+    RemoveMaterial(String),
+    /// Undoes the last step.
+    Undo,
+    /// Redoes the last undone step.
+    Redo,
+    /// Starts a new, empty design (the caller asks about unsaved changes first).
+    New,
+    /// Opens a design file (the caller asks about unsaved changes first).
+    Open(PathBuf),
+    /// Replaces the document with `design`, not yet saved anywhere (e.g. recovered work).
+    Recover(Box<Design>),
+    /// Saves to the document's file.
+    Save,
+    /// Saves to a new file, which becomes the document's file.
+    SaveAs(PathBuf),
+}
+
+/// Why a command was refused.
+#[derive(Debug, thiserror::Error)]
+#[non_exhaustive]
+pub enum CommandError {
+    /// A layer index the design does not have.
+    #[error("there is no layer {number}; the design has {count} layer(s)")]
+    NoSuchLayer {
+        /// The 1-based layer number.
+        number: usize,
+        /// How many layers there are.
+        count: usize,
+    },
+    /// A number that cannot be used.
+    #[error("{what} must be {rule}, got {value}")]
+    BadNumber {
+        /// Which value.
+        what: &'static str,
+        /// What it must be.
+        rule: &'static str,
+        /// The value given.
+        value: f64,
+    },
+    /// A material name that cannot be resolved.
+    #[error("{place}: {source}")]
+    Material {
+        /// Where it was to be used.
+        place: String,
+        /// Why it cannot.
+        source: MaterialError,
+    },
+    /// A design-level refusal (e.g. a QWOT that cannot be converted).
+    #[error(transparent)]
+    Design(#[from] DesignError),
+    /// A file could not be read or written; the document is unchanged.
+    #[error(transparent)]
+    File(#[from] DesignFileError),
+    /// Save with no file yet.
+    #[error("the design has no file yet; use Save As")]
+    NoPath,
+    /// Undo or redo with nothing to do.
+    #[error("nothing to {0}")]
+    Nothing(&'static str),
+    /// A refused change to the material list.
+    #[error("{0}")]
+    Materials(String),
+}
+
+/// The design being edited, where it lives, and its history.
+#[derive(Clone, Debug)]
+pub struct Document {
+    /// The design as it is now.
+    pub design: Design,
+    /// The file it was opened from or last saved to.
+    pub path: Option<PathBuf>,
+    /// The design as last saved or opened, for the unsaved-changes mark.
+    pub saved: Design,
+    /// Undo/redo snapshots.
+    pub history: History,
+    /// Bumped on every change to `design`; caches key on it.
+    pub revision: u64,
+}
+
+impl Document {
+    /// A document for `design`, saved at `path` (or never saved when `None`).
+    #[must_use]
+    pub fn new(design: Design, path: Option<PathBuf>) -> Self {
+        Self {
+            history: History::new(&design),
+            saved: design.clone(),
+            design,
+            path,
+            revision: 0,
+        }
+    }
+
+    /// Whether the design differs from the last saved or opened copy.
+    #[must_use]
+    pub fn is_dirty(&self) -> bool {
+        self.design != self.saved
+    }
+
+    /// The window title: name, an unsaved mark, and the program.
+    #[must_use]
+    pub fn title(&self) -> String {
+        let mark = if self.is_dirty() { " •" } else { "" };
+        format!("{}{mark} — Stackwise", self.design.name)
+    }
+
+    /// Records the current design as an undo step if it changed since the last one.
+    pub fn commit(&mut self) -> bool {
+        self.history.commit(&self.design)
+    }
+
+    /// Carries out `cmd`. On `Err` the document is unchanged.
+    pub fn apply(&mut self, cmd: Command) -> Result<(), CommandError> {
+        let before_revision_design = self.design.clone();
+        let result = self.apply_inner(cmd);
+        if self.design != before_revision_design {
+            self.revision += 1;
+        }
+        result
+    }
+
+    fn replace_document(&mut self, design: Design, path: Option<PathBuf>, saved: Design) {
+        self.history = History::new(&design);
+        self.design = design;
+        self.path = path;
+        self.saved = saved;
+        // A whole new document: make sure every cache sees a new revision.
+        self.revision += 1;
+    }
+
+    #[expect(clippy::too_many_lines, reason = "one arm per command reads best")]
+    fn apply_inner(&mut self, cmd: Command) -> Result<(), CommandError> {
+        match cmd {
+            Command::SetThickness { layer, nm } => {
+                self.check_layer(layer)?;
+                let nm =
+                    Nm::new(nm).map_err(|_| bad("thickness (nm)", "finite and 0 or more", nm))?;
+                self.design.layers[layer].nm = nm;
+            }
+            Command::SetQwot { layer, qwot } => {
+                self.check_layer(layer)?;
+                let mut d = self.design.clone();
+                d.set_layer_qwot(layer + 1, qwot)?;
+                self.design = d;
+            }
+            Command::SetMaterial { layer, name } => {
+                self.check_layer(layer)?;
+                self.check_material(&name, &format!("layer {}", layer + 1))?;
+                self.design.layers[layer].material = name;
+            }
+            Command::InsertLayer { at, layer } => {
+                if at > self.design.layers.len() {
+                    return Err(self.no_layer(at));
+                }
+                self.check_material(&layer.material, "new layer")?;
+                self.design.layers.insert(at, layer);
+            }
+            Command::DuplicateLayer(i) => {
+                self.check_layer(i)?;
+                let copy = self.design.layers[i].clone();
+                self.design.layers.insert(i + 1, copy);
+            }
+            Command::RemoveLayers(mut list) => {
+                list.sort_unstable();
+                list.dedup();
+                for &i in &list {
+                    self.check_layer(i)?;
+                }
+                for &i in list.iter().rev() {
+                    self.design.layers.remove(i);
+                }
+            }
+            Command::MoveLayer { from, to } => {
+                self.check_layer(from)?;
+                self.check_layer(to)?;
+                let l = self.design.layers.remove(from);
+                self.design.layers.insert(to, l);
+            }
+            Command::ScaleLayers { layers, factor } => {
+                if !(factor.is_finite() && factor > 0.0) {
+                    return Err(bad("scale factor", "a finite number above 0", factor));
+                }
+                let mut new = self.design.layers.clone();
+                for &i in &layers {
+                    self.check_layer(i)?;
+                    let v = new[i].nm.get() * factor;
+                    new[i].nm =
+                        Nm::new(v).map_err(|_| bad("scaled thickness (nm)", "finite", v))?;
+                }
+                self.design.layers = new;
+            }
+            Command::ToggleLock(i) => {
+                self.check_layer(i)?;
+                self.design.layers[i].locked ^= true;
+            }
+            Command::SetIncident(name) => {
+                self.check_material(&name, "incident medium")?;
+                self.design.incident = name;
+            }
+            Command::SetSubstrate(name) => {
+                self.check_material(&name, "substrate")?;
+                self.design.substrate = name;
+            }
+            Command::SetExit(name) => {
+                self.check_material(&name, "exit medium")?;
+                self.design.exit = name;
+            }
+            Command::SetSubstrateMm(mm) => {
+                if let Some(v) = mm
+                    && !(v.is_finite() && v > 0.0)
+                {
+                    return Err(bad(
+                        "substrate thickness (mm)",
+                        "a finite number above 0",
+                        v,
+                    ));
+                }
+                self.design.substrate_mm = mm;
+            }
+            Command::SetReference(nm) => {
+                if !(nm.is_finite() && nm > 0.0) {
+                    return Err(bad(
+                        "reference wavelength (nm)",
+                        "a finite number above 0",
+                        nm,
+                    ));
+                }
+                self.design.reference_nm = nm;
+            }
+            Command::ReplaceLayers(layers) => {
+                for (i, l) in layers.iter().enumerate() {
+                    self.check_material(&l.material, &format!("layer {}", i + 1))?;
+                }
+                self.design.layers = layers;
+            }
+            Command::SetName(name) => self.design.name = name,
+            Command::AddMaterial(m) => self.add_material(m)?,
+            Command::ReplaceMaterial { old_name, material } => {
+                self.replace_material(&old_name, material)?;
+            }
+            Command::RemoveMaterial(name) => self.remove_material(&name)?,
+            Command::Undo => {
+                let d = self
+                    .history
+                    .undo(&self.design)
+                    .ok_or(CommandError::Nothing("undo"))?;
+                self.design = d;
+            }
+            Command::Redo => {
+                let d = self
+                    .history
+                    .redo(&self.design)
+                    .ok_or(CommandError::Nothing("redo"))?;
+                self.design = d;
+            }
+            Command::New => {
+                let d = Design::new_empty("Untitled");
+                self.replace_document(d.clone(), None, d);
+            }
+            Command::Open(path) => {
+                let d = file::load(&path)?;
+                self.replace_document(d.clone(), Some(path), d);
+            }
+            Command::Recover(d) => {
+                // Recovered work is unsaved: compare against an empty "saved" copy.
+                let saved = Design::new_empty("");
+                self.replace_document(*d, None, saved);
+            }
+            Command::Save => {
+                let path = self.path.clone().ok_or(CommandError::NoPath)?;
+                self.save_to(&path)?;
+            }
+            Command::SaveAs(path) => {
+                self.save_to(&path)?;
+                self.path = Some(path);
+            }
+        }
+        Ok(())
+    }
+
+    fn save_to(&mut self, path: &Path) -> Result<(), CommandError> {
+        file::save(path, &self.design)?;
+        self.saved = self.design.clone();
+        Ok(())
+    }
+
+    fn no_layer(&self, i: usize) -> CommandError {
+        CommandError::NoSuchLayer {
+            number: i + 1,
+            count: self.design.layers.len(),
+        }
+    }
+
+    fn check_layer(&self, i: usize) -> Result<(), CommandError> {
+        if i < self.design.layers.len() {
+            Ok(())
+        } else {
+            Err(self.no_layer(i))
+        }
+    }
+
+    fn check_material(&self, name: &str, place: &str) -> Result<(), CommandError> {
+        Catalog::new(&self.design.materials)
+            .get(name)
+            .map(|_| ())
+            .map_err(|source| CommandError::Material {
+                place: place.to_owned(),
+                source,
+            })
+    }
+
+    fn add_material(&mut self, m: Material) -> Result<(), CommandError> {
+        if m.name.trim().is_empty() {
+            return Err(CommandError::Materials(
+                "a material needs a name".to_owned(),
+            ));
+        }
+        if self.design.materials.iter().any(|x| x.name == m.name) {
+            return Err(CommandError::Materials(format!(
+                "the design already defines {:?}; replace it or pick another name",
+                m.name
+            )));
+        }
+        m.validate().map_err(|source| CommandError::Material {
+            place: "new material".into(),
+            source,
+        })?;
+        self.design.materials.push(m);
+        Ok(())
+    }
+
+    fn replace_material(&mut self, old: &str, m: Material) -> Result<(), CommandError> {
+        m.validate().map_err(|source| CommandError::Material {
+            place: format!("material {old:?}"),
+            source,
+        })?;
+        if m.name != old && self.design.materials.iter().any(|x| x.name == m.name) {
+            return Err(CommandError::Materials(format!(
+                "the design already defines {:?}; pick another name",
+                m.name
+            )));
+        }
+        let d = &mut self.design;
+        let new_name = m.name.clone();
+        match d.materials.iter_mut().find(|x| x.name == old) {
+            Some(slot) => *slot = m,
+            None => d.materials.push(m),
+        }
+        if new_name != old {
+            for name in d.layers.iter_mut().map(|l| &mut l.material).chain([
+                &mut d.incident,
+                &mut d.substrate,
+                &mut d.exit,
+            ]) {
+                if name == old {
+                    name.clone_from(&new_name);
+                }
+            }
+        }
+        Ok(())
+    }
+
+    fn remove_material(&mut self, name: &str) -> Result<(), CommandError> {
+        let Some(pos) = self.design.materials.iter().position(|m| m.name == name) else {
+            return Err(CommandError::Materials(format!(
+                "the design defines no material {name:?}"
+            )));
+        };
+        let d = &self.design;
+        let shadows_builtin = crate::material::find_builtin(name).is_some();
+        let users: Vec<String> = d
+            .layers
+            .iter()
+            .enumerate()
+            .filter(|(_, l)| l.material == name)
+            .map(|(i, _)| format!("layer {}", i + 1))
+            .chain(
+                [
+                    ("incident medium", &d.incident),
+                    ("substrate", &d.substrate),
+                    ("exit medium", &d.exit),
+                ]
+                .into_iter()
+                .filter(|(_, m)| *m == name)
+                .map(|(p, _)| p.to_owned()),
+            )
+            .collect();
+        if !users.is_empty() && !shadows_builtin {
+            return Err(CommandError::Materials(format!(
+                "{name:?} is still used by {}; change those first",
+                users.join(", ")
+            )));
+        }
+        self.design.materials.remove(pos);
+        Ok(())
+    }
+}
+
+fn bad(what: &'static str, rule: &'static str, value: f64) -> CommandError {
+    CommandError::BadNumber { what, rule, value }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::material::Model;
+
+    fn doc() -> Document {
+        let mut d = Design::new_empty("t");
+        d.materials = vec![
+            Material::user("H", Model::Constant { n: 2.0, k: 0.0 }),
+            Material::user("L", Model::Constant { n: 1.5, k: 0.0 }),
+        ];
+        d.layers = vec![
+            Layer::new("H", Nm::new(10.0).unwrap()),
+            Layer::new("L", Nm::new(20.0).unwrap()),
+            Layer::new("H", Nm::new(30.0).unwrap()),
+        ];
+        Document::new(d, None)
+    }
+
+    fn nms(d: &Document) -> Vec<f64> {
+        d.design.layers.iter().map(|l| l.nm.get()).collect()
+    }
+
+    #[test]
+    fn thickness_is_checked() {
+        let mut d = doc();
+        d.apply(Command::SetThickness { layer: 1, nm: 42.0 })
+            .unwrap();
+        assert_eq!(nms(&d), [10.0, 42.0, 30.0], "set");
+        for bad in [-1.0, f64::NAN, f64::INFINITY] {
+            let e = d
+                .apply(Command::SetThickness { layer: 0, nm: bad })
+                .unwrap_err();
+            assert!(e.to_string().contains("thickness"), "{e}");
+        }
+        let e = d
+            .apply(Command::SetThickness { layer: 3, nm: 1.0 })
+            .unwrap_err();
+        assert!(e.to_string().contains("no layer 4"), "{e}");
+        assert_eq!(nms(&d), [10.0, 42.0, 30.0], "refusals change nothing");
+    }
+
+    #[test]
+    fn qwot_sets_nm_through_the_design() {
+        let mut d = doc();
+        d.apply(Command::SetQwot {
+            layer: 0,
+            qwot: 1.0,
+        })
+        .unwrap();
+        // d = λ/(4n) = 550/8.
+        assert!(
+            (d.design.layers[0].nm.get() - 550.0 / 8.0).abs() < 1e-9,
+            "{:?}",
+            nms(&d)
+        );
+        assert!(
+            (d.design.layer_qwot(1).unwrap() - 1.0).abs() < 1e-12,
+            "round trip"
+        );
+        assert!(
+            d.apply(Command::SetQwot {
+                layer: 0,
+                qwot: -2.0
+            })
+            .is_err(),
+            "negative"
+        );
+    }
+
+    #[test]
+    fn insert_duplicate_remove_move_scale() {
+        let mut d = doc();
+        d.apply(Command::InsertLayer {
+            at: 3,
+            layer: Layer::new("L", Nm::new(5.0).unwrap()),
+        })
+        .unwrap();
+        assert_eq!(nms(&d), [10.0, 20.0, 30.0, 5.0], "append");
+        d.apply(Command::DuplicateLayer(0)).unwrap();
+        assert_eq!(nms(&d), [10.0, 10.0, 20.0, 30.0, 5.0], "duplicate");
+        d.apply(Command::RemoveLayers(vec![4, 0, 0])).unwrap();
+        assert_eq!(
+            nms(&d),
+            [10.0, 20.0, 30.0],
+            "remove, duplicates in the list ignored"
+        );
+        d.apply(Command::MoveLayer { from: 0, to: 2 }).unwrap();
+        assert_eq!(nms(&d), [20.0, 30.0, 10.0], "move");
+        d.apply(Command::ScaleLayers {
+            layers: vec![0, 2],
+            factor: 1.5,
+        })
+        .unwrap();
+        assert_eq!(nms(&d), [30.0, 30.0, 15.0], "scale");
+        for f in [0.0, -1.0, f64::NAN] {
+            assert!(
+                d.apply(Command::ScaleLayers {
+                    layers: vec![0],
+                    factor: f
+                })
+                .is_err(),
+                "{f}"
+            );
+        }
+        assert!(
+            d.apply(Command::RemoveLayers(vec![0, 9])).is_err(),
+            "out of range"
+        );
+        assert_eq!(d.design.layers.len(), 3, "nothing removed on refusal");
+        assert!(
+            d.apply(Command::InsertLayer {
+                at: 0,
+                layer: Layer::new("Unobtainium", Nm::ZERO)
+            })
+            .is_err(),
+            "unknown material"
+        );
+    }
+
+    #[test]
+    fn media_and_reference_are_checked() {
+        let mut d = doc();
+        d.apply(Command::SetSubstrate("N-BK7".into())).unwrap();
+        assert_eq!(d.design.substrate, "N-BK7", "built-in");
+        let e = d
+            .apply(Command::SetExit("Nope".into()))
+            .unwrap_err()
+            .to_string();
+        assert!(e.starts_with("exit medium: unknown material"), "{e}");
+        assert!(
+            d.apply(Command::SetSubstrateMm(Some(0.0))).is_err(),
+            "zero mm"
+        );
+        d.apply(Command::SetSubstrateMm(Some(2.0))).unwrap();
+        assert_eq!(d.design.substrate_mm, Some(2.0), "mm");
+        assert!(
+            d.apply(Command::SetReference(f64::NAN)).is_err(),
+            "NaN reference"
+        );
+    }
+
+    #[test]
+    fn revision_and_dirty_follow_changes() {
+        let mut d = doc();
+        assert!(!d.is_dirty(), "fresh");
+        let r = d.revision;
+        d.apply(Command::ToggleLock(0)).unwrap();
+        assert!(d.is_dirty() && d.revision > r, "changed");
+        assert!(d.title().contains('•'), "{}", d.title());
+        d.apply(Command::Undo).unwrap();
+        assert!(!d.is_dirty(), "undone");
+        d.apply(Command::Redo).unwrap();
+        assert!(d.design.layers[0].locked, "redone");
+    }
+
+    #[test]
+    fn save_open_and_a_malformed_file() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("a.ron");
+        let mut d = doc();
+        assert!(
+            matches!(d.apply(Command::Save), Err(CommandError::NoPath)),
+            "no path"
+        );
+        d.apply(Command::SetName("Saved one".into())).unwrap();
+        d.apply(Command::SaveAs(path.clone())).unwrap();
+        assert!(!d.is_dirty(), "saved");
+        assert_eq!(file::load(&path).unwrap(), d.design, "on disk");
+
+        let bad = dir.path().join("bad.ron");
+        std::fs::write(&bad, "(format: 1,\n name: 3,\n)").unwrap();
+        let before = d.design.clone();
+        let e = d.apply(Command::Open(bad)).unwrap_err().to_string();
+        assert!(e.contains("line 2"), "{e}");
+        assert_eq!(d.design, before, "untouched");
+        assert_eq!(d.path.as_deref(), Some(path.as_path()), "path kept");
+
+        d.apply(Command::New).unwrap();
+        assert!(d.design.layers.is_empty() && d.path.is_none(), "new");
+        d.apply(Command::Open(path)).unwrap();
+        assert_eq!(d.design.name, "Saved one", "reopened");
+    }
+
+    #[test]
+    fn materials_are_added_renamed_and_removed_safely() {
+        let mut d = doc();
+        let m = Material::user("M", Model::Constant { n: 1.7, k: 0.0 });
+        d.apply(Command::AddMaterial(m.clone())).unwrap();
+        assert!(d.apply(Command::AddMaterial(m)).is_err(), "duplicate");
+        let e = d
+            .apply(Command::RemoveMaterial("H".into()))
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("layer 1") && e.contains("layer 3"), "{e}");
+        d.apply(Command::ReplaceMaterial {
+            old_name: "H".into(),
+            material: Material::user("Hi", Model::Constant { n: 2.1, k: 0.0 }),
+        })
+        .unwrap();
+        assert_eq!(d.design.layers[0].material, "Hi", "layers follow a rename");
+        d.apply(Command::RemoveMaterial("M".into())).unwrap();
+        assert_eq!(d.design.materials.len(), 2, "removed");
+    }
+}

@@ -1,0 +1,455 @@
+//! The centre views: spectrum over wavelength and response over angle, each with its own
+//! control row. They draw cached results; nothing here computes optics.
+
+use egui::{Color32, DragValue};
+use egui_plot::{HoverPosition, Legend, Line, LineStyle, Plot, PlotPoint, PlotPoints};
+
+use crate::design::Design;
+use crate::material::EV_UM;
+
+use super::compute::{Sweep, SweepCache, SweepResult};
+use super::theme;
+
+/// The caution shown whenever optical density is plotted.
+pub const OD_CAUTION: &str = "Computed optical density is a theoretical value for ideal \
+layers, not a certification; laser-protective filters and eyewear must be tested and certified \
+under the applicable standards (e.g. EN 207 / ISO 19818-1, ANSI Z136) and local codes.";
+
+/// The spectrum's horizontal axis.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum XAxis {
+    /// Wavelength in nm.
+    Wavelength,
+    /// Wavenumber in cm⁻¹.
+    Wavenumber,
+    /// Photon energy in eV.
+    PhotonEnergy,
+}
+
+impl XAxis {
+    fn label(self) -> &'static str {
+        match self {
+            XAxis::Wavelength => "wavelength (nm)",
+            XAxis::Wavenumber => "wavenumber (cm⁻¹)",
+            XAxis::PhotonEnergy => "photon energy (eV)",
+        }
+    }
+
+    fn value_at_nm(self, nm: f64) -> f64 {
+        match self {
+            XAxis::Wavelength => nm,
+            XAxis::Wavenumber => 1.0e7 / nm,
+            XAxis::PhotonEnergy => EV_UM * 1000.0 / nm,
+        }
+    }
+}
+
+/// The vertical axis.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum YAxis {
+    /// R, T, A in percent.
+    Percent,
+    /// Optical density −log10 T (transmittance only).
+    OpticalDensity,
+}
+
+/// Which curves to draw.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[expect(clippy::struct_excessive_bools, reason = "one check box each")]
+pub struct Curves {
+    /// Reflectance.
+    pub r: bool,
+    /// Transmittance.
+    pub t: bool,
+    /// Absorptance.
+    pub a: bool,
+    /// s-polarisation.
+    pub s: bool,
+    /// p-polarisation.
+    pub p: bool,
+    /// Mean of s and p.
+    pub mean: bool,
+}
+
+impl Default for Curves {
+    fn default() -> Self {
+        Self {
+            r: true,
+            t: false,
+            a: false,
+            s: false,
+            p: false,
+            mean: true,
+        }
+    }
+}
+
+/// Settings of both views (window state, not part of the design).
+#[derive(Clone, Debug, PartialEq)]
+pub struct ViewSettings {
+    /// First wavelength (nm).
+    pub from_nm: f64,
+    /// Last wavelength (nm).
+    pub to_nm: f64,
+    /// Wavelength step (nm).
+    pub step_nm: f64,
+    /// Angle of incidence for the spectrum (degrees).
+    pub aoi_deg: f64,
+    /// Spectrum curves.
+    pub spectrum_curves: Curves,
+    /// Spectrum horizontal axis.
+    pub x_axis: XAxis,
+    /// Spectrum vertical axis.
+    pub y_axis: YAxis,
+    /// Wavelength of the angle view (nm).
+    pub angle_wavelength_nm: f64,
+    /// Angle step (degrees).
+    pub angle_step_deg: f64,
+    /// Angle-view curves.
+    pub angle_curves: Curves,
+}
+
+impl ViewSettings {
+    /// The command line's default span for `design`: 0.7 to 1.5 × the reference wavelength in
+    /// 400 steps, normal incidence; the angle view at the reference wavelength.
+    #[must_use]
+    pub fn for_design(design: &Design) -> Self {
+        let r = if design.reference_nm.is_finite() && design.reference_nm > 0.0 {
+            design.reference_nm
+        } else {
+            550.0
+        };
+        let (from, to) = (0.7 * r, 1.5 * r);
+        Self {
+            from_nm: from,
+            to_nm: to,
+            step_nm: (to - from) / 400.0,
+            aoi_deg: 0.0,
+            spectrum_curves: Curves::default(),
+            x_axis: XAxis::Wavelength,
+            y_axis: YAxis::Percent,
+            angle_wavelength_nm: r,
+            angle_step_deg: 0.5,
+            angle_curves: Curves {
+                s: true,
+                p: true,
+                ..Curves::default()
+            },
+        }
+    }
+
+    /// The spectrum sweep these settings ask for.
+    #[must_use]
+    pub fn spectrum_sweep(&self) -> Sweep {
+        Sweep::Spectrum {
+            from_nm: self.from_nm,
+            to_nm: self.to_nm,
+            step_nm: self.step_nm,
+            aoi_deg: self.aoi_deg,
+        }
+    }
+
+    /// The angle sweep these settings ask for (0–89°).
+    #[must_use]
+    pub fn angle_sweep(&self) -> Sweep {
+        Sweep::Angles {
+            wavelength_nm: self.angle_wavelength_nm,
+            from_deg: 0.0,
+            to_deg: 89.0,
+            step_deg: self.angle_step_deg,
+        }
+    }
+}
+
+/// One drawable curve.
+struct Series {
+    name: String,
+    colour: Color32,
+    style: LineStyle,
+    points: Vec<PlotPoint>,
+}
+
+/// Plot-ready points, rebuilt only when the result or the display choices change.
+#[derive(Default)]
+pub struct PlotCache {
+    key: Option<(u64, Curves, XAxis, YAxis)>,
+    series: Vec<Series>,
+}
+
+fn build_series(
+    result: &SweepResult,
+    curves: Curves,
+    x: impl Fn(f64) -> f64,
+    y: YAxis,
+) -> Vec<Series> {
+    let c = &result.curves;
+    let quantities: [(&str, bool, Color32, [&Vec<f64>; 3]); 3] = [
+        (
+            "R",
+            curves.r && y == YAxis::Percent,
+            theme::R,
+            [&c.r_s, &c.r_p, &c.r],
+        ),
+        (
+            "T",
+            curves.t || y == YAxis::OpticalDensity,
+            theme::T,
+            [&c.t_s, &c.t_p, &c.t],
+        ),
+        (
+            "A",
+            curves.a && y == YAxis::Percent,
+            theme::A,
+            [&c.a_s, &c.a_p, &c.a],
+        ),
+    ];
+    let pols = [
+        ("s", curves.s, LineStyle::dashed_dense()),
+        ("p", curves.p, LineStyle::dotted_dense()),
+        ("", curves.mean, LineStyle::Solid),
+    ];
+    let mut out = Vec::new();
+    for (q, on, colour, cols) in quantities {
+        if !on {
+            continue;
+        }
+        for ((pol, pol_on, style), col) in pols.iter().zip(cols) {
+            if !pol_on {
+                continue;
+            }
+            let name = match (y, *pol) {
+                (YAxis::OpticalDensity, "") => "OD".to_owned(),
+                (YAxis::OpticalDensity, p) => format!("OD_{p}"),
+                (YAxis::Percent, "") => q.to_owned(),
+                (YAxis::Percent, p) => format!("{q}_{p}"),
+            };
+            let points = result
+                .x
+                .iter()
+                .zip(col.iter())
+                .filter_map(|(&xv, &v)| {
+                    let yv = match y {
+                        YAxis::Percent => 100.0 * v,
+                        YAxis::OpticalDensity => -v.log10(),
+                    };
+                    let xv = x(xv);
+                    (yv.is_finite() && xv.is_finite()).then_some(PlotPoint::new(xv, yv))
+                })
+                .collect();
+            out.push(Series {
+                name,
+                colour,
+                style: *style,
+                points,
+            });
+        }
+    }
+    out
+}
+
+fn curve_toggles_ui(ui: &mut egui::Ui, c: &mut Curves, with_rta: bool) {
+    if with_rta {
+        ui.checkbox(&mut c.r, "R");
+        ui.checkbox(&mut c.t, "T");
+        ui.checkbox(&mut c.a, "A");
+        ui.separator();
+    }
+    ui.checkbox(&mut c.s, "s");
+    ui.checkbox(&mut c.p, "p");
+    ui.checkbox(&mut c.mean, "mean");
+}
+
+fn draw(
+    ui: &mut egui::Ui,
+    id: &str,
+    cache: &PlotCache,
+    x_label: &str,
+    y_label: &str,
+    x_unit: &'static str,
+    y_unit: &'static str,
+) {
+    let formatter = move |hp: &HoverPosition<'_>| -> Option<String> {
+        Some(match hp {
+            HoverPosition::NearDataPoint {
+                plot_name,
+                position,
+                ..
+            } => format!(
+                "{plot_name}: {:.4}{y_unit}\nat {:.4} {x_unit}",
+                position.y, position.x
+            ),
+            HoverPosition::Elsewhere { position } => {
+                format!("{:.4} {x_unit}, {:.4}{y_unit}", position.x, position.y)
+            }
+        })
+    };
+    Plot::new(id)
+        .legend(Legend::default())
+        .x_axis_label(x_label.to_owned())
+        .y_axis_label(y_label.to_owned())
+        .label_formatter(formatter)
+        .show(ui, |plot_ui| {
+            for s in &cache.series {
+                plot_ui.line(
+                    Line::new(s.name.clone(), PlotPoints::Borrowed(&s.points))
+                        .color(s.colour)
+                        .style(s.style)
+                        .width(1.5),
+                );
+            }
+        });
+}
+
+fn refresh(
+    cache: &mut PlotCache,
+    sweeps: &SweepCache,
+    generation: u64,
+    curves: Curves,
+    x: XAxis,
+    y: YAxis,
+    angle: bool,
+) {
+    let key = (generation, curves, x, y);
+    if cache.key == Some(key) {
+        return;
+    }
+    cache.series = match sweeps.result() {
+        Some(Ok(r)) if angle => build_series(r, curves, |v| v, YAxis::Percent),
+        Some(Ok(r)) => build_series(r, curves, |nm| x.value_at_nm(nm), y),
+        _ => Vec::new(),
+    };
+    cache.key = Some(key);
+}
+
+/// The spectrum view with its control row.
+pub fn spectrum_ui(
+    ui: &mut egui::Ui,
+    s: &mut ViewSettings,
+    sweeps: &SweepCache,
+    plot: &mut PlotCache,
+) {
+    ui.horizontal_wrapped(|ui| {
+        ui.strong("Spectrum");
+        curve_toggles_ui(ui, &mut s.spectrum_curves, true);
+        ui.separator();
+        let l = ui.label("from");
+        ui.add(
+            DragValue::new(&mut s.from_nm)
+                .range(1.0..=100_000.0)
+                .suffix(" nm"),
+        )
+        .labelled_by(l.id);
+        let l = ui.label("to");
+        ui.add(
+            DragValue::new(&mut s.to_nm)
+                .range(1.0..=100_000.0)
+                .suffix(" nm"),
+        )
+        .labelled_by(l.id);
+        let l = ui.label("step");
+        ui.add(
+            DragValue::new(&mut s.step_nm)
+                .range(0.001..=10_000.0)
+                .speed(0.01)
+                .suffix(" nm"),
+        )
+        .labelled_by(l.id);
+    });
+    ui.horizontal_wrapped(|ui| {
+        ui.label("x:");
+        ui.selectable_value(&mut s.x_axis, XAxis::Wavelength, "wavelength");
+        ui.selectable_value(&mut s.x_axis, XAxis::Wavenumber, "wavenumber");
+        ui.selectable_value(&mut s.x_axis, XAxis::PhotonEnergy, "photon energy");
+        ui.separator();
+        ui.label("y:");
+        ui.selectable_value(&mut s.y_axis, YAxis::Percent, "linear %");
+        ui.selectable_value(&mut s.y_axis, YAxis::OpticalDensity, "optical density");
+        ui.separator();
+        let l = ui.label("angle of incidence");
+        ui.add(egui::Slider::new(&mut s.aoi_deg, 0.0..=89.0).suffix("°"))
+            .labelled_by(l.id);
+    });
+    if s.y_axis == YAxis::OpticalDensity {
+        ui.colored_label(ui.visuals().warn_fg_color, OD_CAUTION);
+    }
+    if let Some(Err(e)) = sweeps.result() {
+        ui.colored_label(ui.visuals().error_fg_color, format!("cannot compute: {e}"));
+    }
+    refresh(
+        plot,
+        sweeps,
+        sweeps.generation(),
+        s.spectrum_curves,
+        s.x_axis,
+        s.y_axis,
+        false,
+    );
+    let (y_label, y_unit) = match s.y_axis {
+        YAxis::Percent => ("R, T, A (%)", " %"),
+        YAxis::OpticalDensity => ("optical density −log₁₀ T", ""),
+    };
+    let x_unit = match s.x_axis {
+        XAxis::Wavelength => "nm",
+        XAxis::Wavenumber => "cm⁻¹",
+        XAxis::PhotonEnergy => "eV",
+    };
+    draw(
+        ui,
+        "spectrum-plot",
+        plot,
+        s.x_axis.label(),
+        y_label,
+        x_unit,
+        y_unit,
+    );
+}
+
+/// The angle view with its control row.
+pub fn angle_ui(
+    ui: &mut egui::Ui,
+    s: &mut ViewSettings,
+    sweeps: &SweepCache,
+    plot: &mut PlotCache,
+) {
+    ui.horizontal_wrapped(|ui| {
+        ui.strong("Angle");
+        curve_toggles_ui(ui, &mut s.angle_curves, true);
+        ui.separator();
+        let l = ui.label("at wavelength");
+        ui.add(
+            DragValue::new(&mut s.angle_wavelength_nm)
+                .range(1.0..=100_000.0)
+                .suffix(" nm"),
+        )
+        .labelled_by(l.id);
+        let l = ui.label("angle step");
+        ui.add(
+            DragValue::new(&mut s.angle_step_deg)
+                .range(0.05..=10.0)
+                .speed(0.05)
+                .suffix("°"),
+        )
+        .labelled_by(l.id);
+    });
+    if let Some(Err(e)) = sweeps.result() {
+        ui.colored_label(ui.visuals().error_fg_color, format!("cannot compute: {e}"));
+    }
+    refresh(
+        plot,
+        sweeps,
+        sweeps.generation(),
+        s.angle_curves,
+        XAxis::Wavelength,
+        YAxis::Percent,
+        true,
+    );
+    draw(
+        ui,
+        "angle-plot",
+        plot,
+        "angle of incidence (°)",
+        "R, T, A (%)",
+        "°",
+        " %",
+    );
+}

@@ -1,0 +1,332 @@
+//! The design window, driven headless with egui_kittest: edits go through the widgets, and
+//! the numbers on show are checked against the command line's for the saved design.
+
+// Exact float comparisons are the point: the window and the CLI run the same engine, so their
+// numbers must be bit-identical, and thicknesses typed in must be stored as typed.
+#![allow(clippy::float_cmp, clippy::unwrap_used)]
+
+use std::path::Path;
+
+use egui::{Key, Modifiers, Vec2};
+use egui_kittest::Harness;
+use egui_kittest::kittest::Queryable as _;
+use stackwise::cli::{self, SideArg};
+use stackwise::design::file;
+use stackwise::gui::{App, Command, FileAction};
+
+fn harness(app: App) -> Harness<'static, App> {
+    Harness::builder()
+        .with_size(Vec2::new(1400.0, 900.0))
+        .build_ui_state(|ui, app: &mut App| app.show(ui), app)
+}
+
+/// The demo design with sweeps computed inline, so each frame shows the current design.
+fn demo() -> Harness<'static, App> {
+    let mut app = App::new(None);
+    app.spectrum.force_inline = true;
+    app.angles.force_inline = true;
+    let mut h = harness(app);
+    h.run();
+    h
+}
+
+fn nms(h: &Harness<'_, App>) -> Vec<f64> {
+    h.state()
+        .doc
+        .design
+        .layers
+        .iter()
+        .map(|l| l.nm.get())
+        .collect()
+}
+
+/// Runs `stackwise spectrum` on `path` and returns (wavelength, R) rows.
+fn cli_spectrum(path: &Path, from: f64, to: f64, step: f64) -> Vec<(f64, f64)> {
+    let mut out = Vec::new();
+    let mut err = Vec::new();
+    cli::run(
+        cli::Command::Spectrum {
+            design: path.to_path_buf(),
+            from: Some(from),
+            to: Some(to),
+            step: Some(step),
+            aoi: 0.0,
+            side: SideArg::Front,
+            out: None,
+        },
+        &mut out,
+        &mut err,
+    )
+    .unwrap();
+    let text = String::from_utf8(out).unwrap();
+    let mut lines = text.lines();
+    assert_eq!(
+        lines.next(),
+        Some("wavelength_nm,R_s,R_p,R,T_s,T_p,T,A_s,A_p,A"),
+        "CSV header"
+    );
+    lines
+        .map(|l| {
+            let f: Vec<f64> = l.split(',').map(|x| x.parse().unwrap()).collect();
+            (f[0], f[3])
+        })
+        .collect()
+}
+
+#[test]
+fn editing_a_thickness_shows_what_the_cli_computes_for_the_saved_file() {
+    let mut h = demo();
+    let before_r = h
+        .state()
+        .spectrum
+        .result()
+        .unwrap()
+        .as_ref()
+        .unwrap()
+        .curves
+        .r
+        .clone();
+    h.get_by_label("Layer 2 nm").set_value_accesskit(50.0);
+    h.run();
+    assert_eq!(nms(&h)[1], 50.0, "the table edited layer 2");
+
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("edited.ron");
+    assert!(h.state_mut().apply(Command::SaveAs(path.clone())), "saved");
+    h.run();
+    assert!(!h.state().doc.is_dirty(), "clean after saving");
+    assert_eq!(
+        file::load(&path).unwrap().layers[1].nm.get(),
+        50.0,
+        "on disk"
+    );
+
+    let view = h.state().view.clone();
+    let shown = h
+        .state()
+        .spectrum
+        .result()
+        .unwrap()
+        .as_ref()
+        .unwrap()
+        .clone();
+    assert_ne!(shown.curves.r, before_r, "the plot follows the edit");
+    let cli = cli_spectrum(&path, view.from_nm, view.to_nm, view.step_nm);
+    assert_eq!(cli.len(), shown.x.len(), "same points");
+    for (i, (wl, r)) in cli.iter().enumerate() {
+        assert_eq!(*wl, shown.x[i], "wavelength {i}");
+        assert_eq!(*r, shown.curves.r[i], "R at {wl} nm");
+    }
+}
+
+#[test]
+fn add_delete_reorder_and_scale_through_the_buttons() {
+    let mut h = demo();
+    let start = nms(&h);
+    assert_eq!(start.len(), 4, "demo has four layers");
+
+    h.get_by_label("Add").click();
+    h.run();
+    assert_eq!(h.state().doc.design.layers.len(), 5, "added on the outside");
+    assert_eq!(&nms(&h)[..4], &start[..], "others untouched");
+
+    h.get_by_label("Select layer 5").click();
+    h.run();
+    h.get_by_label("Delete").click();
+    h.run();
+    assert_eq!(nms(&h), start, "deleted the new layer");
+
+    h.get_by_label("Select layer 1").click();
+    h.run();
+    h.get_by_label("Up").click();
+    h.run();
+    assert_eq!(
+        nms(&h),
+        [start[1], start[0], start[2], start[3]],
+        "layer 1 moved one place out"
+    );
+    assert!(
+        h.state().stack.selected.contains(&1),
+        "selection follows the layer"
+    );
+
+    h.get_by_label("Scale…").click();
+    h.run();
+    h.get_by_label("Scale factor").set_value_accesskit(2.0);
+    h.run();
+    h.get_by_label("Apply scale").click();
+    h.run();
+    let now = nms(&h);
+    assert!((now[1] - 2.0 * start[0]).abs() < 1e-9, "scaled {now:?}");
+    assert_eq!(now[0], start[1], "unselected layer unchanged");
+}
+
+#[test]
+fn qwot_and_nm_stay_in_step() {
+    let mut h = demo();
+    h.get_by_label("Layer 1 QWOT").set_value_accesskit(1.0);
+    h.run();
+    let d = &h.state().doc.design;
+    let q = d.layer_qwot(1).unwrap();
+    assert!((q - 1.0).abs() < 1e-9, "QWOT {q}");
+    // Editing nm moves the QWOT by the same ratio.
+    let nm = d.layers[0].nm.get();
+    h.get_by_label("Layer 1 nm").set_value_accesskit(nm * 0.5);
+    h.run();
+    let q = h.state().doc.design.layer_qwot(1).unwrap();
+    assert!((q - 0.5).abs() < 1e-9, "QWOT after halving nm: {q}");
+}
+
+#[test]
+fn undo_and_redo_from_the_keyboard() {
+    let mut h = demo();
+    let start = nms(&h);
+    h.get_by_label("Layer 3 nm").set_value_accesskit(77.0);
+    h.run();
+    h.get_by_label("Layer 4 nm").set_value_accesskit(88.0);
+    h.run();
+    assert!(h.state().doc.title().contains('•'), "unsaved mark");
+    h.key_press_modifiers(Modifiers::COMMAND, Key::Z);
+    h.run();
+    assert_eq!(nms(&h)[3], start[3], "second edit undone");
+    assert_eq!(nms(&h)[2], 77.0, "first edit kept");
+    h.key_press_modifiers(Modifiers::COMMAND, Key::Z);
+    h.run();
+    assert_eq!(nms(&h), start, "both undone");
+    assert!(!h.state().doc.is_dirty(), "back to the opened design");
+    h.key_press_modifiers(Modifiers::COMMAND | Modifiers::SHIFT, Key::Z);
+    h.run();
+    assert_eq!(nms(&h)[2], 77.0, "redo");
+    h.key_press_modifiers(Modifiers::COMMAND, Key::Y);
+    h.run();
+    assert_eq!(nms(&h)[3], 88.0, "Ctrl+Y redoes too");
+}
+
+#[test]
+fn a_malformed_file_keeps_the_open_design_and_shows_where() {
+    let mut h = demo();
+    let before = h.state().doc.design.clone();
+    let dir = tempfile::tempdir().unwrap();
+    let bad = dir.path().join("broken.ron");
+    std::fs::write(
+        &bad,
+        "(\n    format: 1,\n    name: \"x\",\n    reference_nm: \"550\",\n)",
+    )
+    .unwrap();
+    let ctx = h.ctx.clone();
+    h.state_mut().file_action(&ctx, FileAction::Open(bad));
+    h.run();
+    assert_eq!(h.state().doc.design, before, "design untouched");
+    let msg = h.state().error_window.clone().expect("error window open");
+    assert!(msg.contains("line 4"), "{msg}");
+    assert!(
+        h.query_all_by_label_contains("line 4, column")
+            .next()
+            .is_some(),
+        "shown: {msg}"
+    );
+    h.get_by_label("OK").click();
+    h.run();
+    assert!(h.state().error_window.is_none(), "dismissed");
+}
+
+#[test]
+fn a_bad_start_file_opens_the_demo_and_says_why() {
+    let dir = tempfile::tempdir().unwrap();
+    let missing = dir.path().join("nope.ron");
+    let app = App::new(Some(missing));
+    let msg = app.error_window.clone().expect("error shown");
+    assert!(msg.contains("nope.ron"), "{msg}");
+    assert_eq!(app.doc.design.layers.len(), 4, "demo design");
+}
+
+#[test]
+fn the_notation_box_builds_layers_and_shows_the_error_column() {
+    let mut h = demo();
+    h.get_by_label("Notation")
+        .set_text_value_accesskit("(HL)^3 H");
+    h.run();
+    assert_eq!(h.state().stack.notation, "(HL)^3 H", "typed");
+    h.get_by_label("Build").click();
+    h.run();
+    let d = &h.state().doc.design;
+    assert_eq!(d.layers.len(), 7, "seven layers");
+    assert_eq!(d.layers[0].material, "TiO2", "H is bound to TiO2");
+    assert!(
+        (d.layer_qwot(2).unwrap() - 1.0).abs() < 1e-9,
+        "quarter waves"
+    );
+
+    h.get_by_label("Notation").set_text_value_accesskit("HL)");
+    h.run();
+    h.get_by_label("Build").click();
+    h.run();
+    assert_eq!(
+        h.state().doc.design.layers.len(),
+        7,
+        "a bad notation changes nothing"
+    );
+    let e = h.state().stack.notation_error.clone().expect("error kept");
+    assert!(e.contains("column 3"), "{e}");
+    assert!(
+        h.query_all_by_label_contains("column 3").next().is_some(),
+        "shown in place: {e}"
+    );
+}
+
+#[test]
+fn unsaved_changes_are_asked_about_before_new() {
+    let mut h = demo();
+    h.get_by_label("Layer 1 nm").set_value_accesskit(1.0);
+    h.run();
+    let ctx = h.ctx.clone();
+    h.state_mut().file_action(&ctx, FileAction::New);
+    h.run();
+    assert_eq!(h.state().doc.design.layers.len(), 4, "not yet replaced");
+    h.get_by_label("Cancel").click();
+    h.run();
+    assert_eq!(
+        h.state().doc.design.layers[0].nm.get(),
+        1.0,
+        "cancel keeps the work"
+    );
+    h.state_mut().file_action(&ctx, FileAction::New);
+    h.run();
+    h.get_by_label("Discard changes").click();
+    h.run();
+    assert!(h.state().doc.design.layers.is_empty(), "new design");
+}
+
+#[test]
+fn autosave_writes_a_recovery_file_that_is_offered_next_time() {
+    let dir = tempfile::tempdir().unwrap();
+    let rec = dir.path().join("recovery.ron");
+    let mut app = App::new(None);
+    app.spectrum.force_inline = true;
+    app.angles.force_inline = true;
+    app.recovery_path = Some(rec.clone());
+    let mut h = harness(app);
+    h.run();
+    h.get_by_label("Layer 2 nm").set_value_accesskit(42.0);
+    h.run();
+    assert!(!rec.exists(), "not before the delay");
+    std::thread::sleep(stackwise::gui::AUTOSAVE_DELAY + std::time::Duration::from_millis(200));
+    h.run();
+    assert_eq!(
+        file::load(&rec).unwrap().layers[1].nm.get(),
+        42.0,
+        "autosaved"
+    );
+
+    let mut next = App::new(None);
+    next.recovery_path = Some(rec.clone());
+    next.check_recovery();
+    next.spectrum.force_inline = true;
+    next.angles.force_inline = true;
+    let mut h2 = harness(next);
+    h2.run();
+    h2.get_by_label("Recover").click();
+    h2.run();
+    assert_eq!(h2.state().doc.design.layers[1].nm.get(), 42.0, "recovered");
+    assert!(h2.state().doc.is_dirty(), "recovered work is unsaved");
+}
