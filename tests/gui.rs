@@ -47,9 +47,11 @@ fn cli_spectrum(path: &Path, from: f64, to: f64, step: f64) -> Vec<(f64, f64)> {
     cli::run(
         cli::Command::Spectrum {
             design: path.to_path_buf(),
-            from: Some(from),
-            to: Some(to),
-            step: Some(step),
+            range: cli::Range {
+                from: Some(from),
+                to: Some(to),
+                step: Some(step),
+            },
             aoi: 0.0,
             side: SideArg::Front,
             out: None,
