@@ -6,6 +6,7 @@
 //! of the same functions, so a number the window shows is the number the CLI prints.
 
 pub mod analysis;
+pub mod cautions;
 pub mod cli;
 pub mod design;
 pub mod export;

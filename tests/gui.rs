@@ -332,3 +332,25 @@ fn autosave_writes_a_recovery_file_that_is_offered_next_time() {
     assert_eq!(h2.state().doc.design.layers[1].nm.get(), 42.0, "recovered");
     assert!(h2.state().doc.is_dirty(), "recovered work is unsaved");
 }
+
+#[test]
+fn cautions_are_one_click_away() {
+    let mut h = demo();
+    assert!(
+        h.query_by_label_contains("ISO 21254").is_none(),
+        "closed at start"
+    );
+    h.get_by_label("Cautions").click();
+    h.run();
+    h.get_by_label_contains("ISO 21254");
+    h.get_by_label_contains("not a certification");
+}
+
+#[test]
+fn warnings_from_the_engine_reach_the_status_line() {
+    // The demo's SiO2 film data start at 252 nm; a sweep from 200 nm must say so.
+    let mut h = demo();
+    h.state_mut().view.from_nm = 200.0;
+    h.run();
+    h.get_by_label_contains("SiO2: data cover 252");
+}

@@ -129,6 +129,15 @@ enum DialogReply {
     Cancelled,
 }
 
+/// Side windows that can be open beside the main layout.
+#[derive(Debug, Default)]
+struct Windows {
+    /// The materials browser.
+    materials: bool,
+    /// The cautions.
+    cautions: bool,
+}
+
 /// The whole window's state.
 pub struct App {
     /// The open design.
@@ -159,7 +168,8 @@ pub struct App {
     last_edit: Option<Instant>,
     autosaved_revision: Option<u64>,
     allow_close: bool,
-    show_materials: bool,
+    /// Which side windows are open.
+    windows: Windows,
     browser: materials::BrowserState,
     title_sent: String,
     commands: Vec<Command>,
@@ -207,7 +217,7 @@ impl App {
             last_edit: None,
             autosaved_revision: None,
             allow_close: false,
-            show_materials: false,
+            windows: Windows::default(),
             browser: materials::BrowserState::default(),
             title_sent: String::new(),
             commands: Vec::new(),
@@ -574,7 +584,10 @@ impl App {
                 }
             });
             if ui.button("Materials…").clicked() {
-                self.show_materials = !self.show_materials;
+                self.windows.materials = !self.windows.materials;
+            }
+            if ui.button("Cautions").clicked() {
+                self.windows.cautions = !self.windows.cautions;
             }
             ui.separator();
             let file = self
@@ -625,12 +638,29 @@ impl App {
                 }
             }
             for w in warnings {
-                ui.colored_label(ui.visuals().warn_fg_color, format!("⚠ {w}"));
+                ui.colored_label(ui.visuals().warn_fg_color, format!("warning: {w}"));
             }
             if let Some(s) = &self.status {
                 ui.colored_label(ui.visuals().error_fg_color, s);
             }
         });
+    }
+
+    fn cautions_ui(&mut self, ctx: &egui::Context) {
+        if !self.windows.cautions {
+            return;
+        }
+        let mut open = true;
+        egui::Window::new("Cautions")
+            .open(&mut open)
+            .default_width(520.0)
+            .show(ctx, |ui| {
+                for c in crate::cautions::ALL {
+                    ui.label(c);
+                    ui.add_space(6.0);
+                }
+            });
+        self.windows.cautions = open;
     }
 
     fn dialogs_ui(&mut self, ctx: &egui::Context) {
@@ -709,7 +739,8 @@ impl App {
                     });
                 });
         }
-        if self.show_materials {
+        self.cautions_ui(ctx);
+        if self.windows.materials {
             let mut open = true;
             let mut action = None;
             egui::Window::new("Materials")
@@ -720,7 +751,7 @@ impl App {
                         action = materials::materials_ui(ui, &mut self.browser, &self.doc.design);
                     });
                 });
-            self.show_materials = open;
+            self.windows.materials = open;
             if let Some(a) = action {
                 self.push(match a {
                     materials::BrowserAction::AddMaterial(m) => Command::AddMaterial(m),

@@ -238,7 +238,7 @@ fn build_series(
                 .collect();
             out.push(Series {
                 name,
-                colour,
+                colour: theme::pol_shade(colour, pol),
                 style: *style,
                 points,
             });

@@ -30,6 +30,23 @@ pub const T: Color32 = Color32::from_rgb(60, 120, 220);
 /// Colour of the absorptance curves.
 pub const A: Color32 = Color32::from_rgb(90, 170, 80);
 
+/// A curve colour for one polarisation: s lighter, p deeper, the mean as it is, so the
+/// legend tells them apart by colour as well as by line style.
+#[must_use]
+pub fn pol_shade(base: Color32, pol: &str) -> Color32 {
+    let mix = |c: u8, to: f32, f: f32| (f32::from(c) + (to - f32::from(c)) * f).round() as u8;
+    let (to, f) = match pol {
+        "s" => (255.0, 0.45),
+        "p" => (0.0, 0.35),
+        _ => return base,
+    };
+    Color32::from_rgb(
+        mix(base.r(), to, f),
+        mix(base.g(), to, f),
+        mix(base.b(), to, f),
+    )
+}
+
 /// The ramp colour for refractive index `n` (clamped to [`N_LOW`], [`N_HIGH`]).
 #[must_use]
 pub fn index_colour(n: f64) -> Color32 {
