@@ -30,6 +30,30 @@ pub const T: Color32 = Color32::from_rgb(60, 120, 220);
 /// Colour of the absorptance curves.
 pub const A: Color32 = Color32::from_rgb(90, 170, 80);
 
+/// Colours that tell open designs apart, chosen to stay distinguishable under the common
+/// forms of colour-vision deficiency (and on light or dark backgrounds): orange, sky blue,
+/// bluish green, vermilion, blue, reddish purple, yellow. A design keeps its colour while open.
+pub const DESIGN_PALETTE: [Color32; 7] = [
+    Color32::from_rgb(230, 159, 0),
+    Color32::from_rgb(86, 180, 233),
+    Color32::from_rgb(0, 158, 115),
+    Color32::from_rgb(213, 94, 0),
+    Color32::from_rgb(0, 114, 178),
+    Color32::from_rgb(204, 121, 167),
+    Color32::from_rgb(240, 228, 66),
+];
+
+/// The first palette colour not in `taken` (the colours of the designs already open); when
+/// all are taken, the colours repeat in order.
+#[must_use]
+pub fn next_design_colour(taken: &[Color32]) -> Color32 {
+    DESIGN_PALETTE
+        .iter()
+        .copied()
+        .find(|c| !taken.contains(c))
+        .unwrap_or(DESIGN_PALETTE[taken.len() % DESIGN_PALETTE.len()])
+}
+
 /// A curve colour for one polarisation: s lighter, p deeper, the mean as it is, so the
 /// legend tells them apart by colour as well as by line style.
 #[must_use]
@@ -103,5 +127,22 @@ mod tests {
         assert_eq!(index_colour(9.0), index_colour(N_HIGH), "clamped high");
         assert_eq!(index_colour(f64::NAN), index_colour(N_LOW), "NaN is safe");
         assert_eq!(material_colour(0.1, 3.0), METAL, "metal");
+    }
+
+    #[test]
+    fn open_designs_get_distinct_colours_until_the_palette_runs_out() {
+        let mut taken = Vec::new();
+        for _ in 0..DESIGN_PALETTE.len() {
+            let c = next_design_colour(&taken);
+            assert!(!taken.contains(&c), "{c:?} given twice");
+            taken.push(c);
+        }
+        assert!(
+            DESIGN_PALETTE.contains(&next_design_colour(&taken)),
+            "repeats"
+        );
+        // A closed design's colour is reused first.
+        taken.remove(2);
+        assert_eq!(next_design_colour(&taken), DESIGN_PALETTE[2]);
     }
 }
