@@ -20,11 +20,19 @@ fn harness(app: App) -> Harness<'static, App> {
         .build_ui_state(|ui, app: &mut App| app.show(ui), app)
 }
 
+/// The `.ron` files in a recovery folder.
+fn recovery_files(dir: &Path) -> Vec<std::path::PathBuf> {
+    std::fs::read_dir(dir)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .filter(|p| p.extension().is_some_and(|x| x == "ron"))
+        .collect()
+}
+
 /// The demo design with sweeps computed inline, so each frame shows the current design.
 fn demo() -> Harness<'static, App> {
     let mut app = App::new(None);
-    app.spectrum.force_inline = true;
-    app.angles.force_inline = true;
+    app.force_inline = true;
     let mut h = harness(app);
     h.run();
     h
@@ -32,7 +40,7 @@ fn demo() -> Harness<'static, App> {
 
 fn nms(h: &Harness<'_, App>) -> Vec<f64> {
     h.state()
-        .doc
+        .doc()
         .design
         .layers
         .iter()
@@ -80,6 +88,7 @@ fn editing_a_thickness_shows_what_the_cli_computes_for_the_saved_file() {
     let mut h = demo();
     let before_r = h
         .state()
+        .active()
         .spectrum
         .result()
         .unwrap()
@@ -96,7 +105,7 @@ fn editing_a_thickness_shows_what_the_cli_computes_for_the_saved_file() {
     let path = dir.path().join("edited.ron");
     assert!(h.state_mut().apply(Command::SaveAs(path.clone())), "saved");
     h.run();
-    assert!(!h.state().doc.is_dirty(), "clean after saving");
+    assert!(!h.state().doc().is_dirty(), "clean after saving");
     assert_eq!(
         file::load(&path).unwrap().layers[1].nm.get(),
         50.0,
@@ -106,6 +115,7 @@ fn editing_a_thickness_shows_what_the_cli_computes_for_the_saved_file() {
     let view = h.state().view.clone();
     let shown = h
         .state()
+        .active()
         .spectrum
         .result()
         .unwrap()
@@ -129,7 +139,11 @@ fn add_delete_reorder_and_scale_through_the_buttons() {
 
     h.get_by_label("Add").click();
     h.run();
-    assert_eq!(h.state().doc.design.layers.len(), 5, "added on the outside");
+    assert_eq!(
+        h.state().doc().design.layers.len(),
+        5,
+        "added on the outside"
+    );
     assert_eq!(&nms(&h)[..4], &start[..], "others untouched");
 
     h.get_by_label("Select layer 5").click();
@@ -168,14 +182,14 @@ fn qwot_and_nm_stay_in_step() {
     let mut h = demo();
     h.get_by_label("Layer 1 QWOT").set_value_accesskit(1.0);
     h.run();
-    let d = &h.state().doc.design;
+    let d = &h.state().doc().design;
     let q = d.layer_qwot(1).unwrap();
     assert!((q - 1.0).abs() < 1e-9, "QWOT {q}");
     // Editing nm moves the QWOT by the same ratio.
     let nm = d.layers[0].nm.get();
     h.get_by_label("Layer 1 nm").set_value_accesskit(nm * 0.5);
     h.run();
-    let q = h.state().doc.design.layer_qwot(1).unwrap();
+    let q = h.state().doc().design.layer_qwot(1).unwrap();
     assert!((q - 0.5).abs() < 1e-9, "QWOT after halving nm: {q}");
 }
 
@@ -187,7 +201,7 @@ fn undo_and_redo_from_the_keyboard() {
     h.run();
     h.get_by_label("Layer 4 nm").set_value_accesskit(88.0);
     h.run();
-    assert!(h.state().doc.title().contains('•'), "unsaved mark");
+    assert!(h.state().doc().title().contains('•'), "unsaved mark");
     h.key_press_modifiers(Modifiers::COMMAND, Key::Z);
     h.run();
     assert_eq!(nms(&h)[3], start[3], "second edit undone");
@@ -195,7 +209,7 @@ fn undo_and_redo_from_the_keyboard() {
     h.key_press_modifiers(Modifiers::COMMAND, Key::Z);
     h.run();
     assert_eq!(nms(&h), start, "both undone");
-    assert!(!h.state().doc.is_dirty(), "back to the opened design");
+    assert!(!h.state().doc().is_dirty(), "back to the opened design");
     h.key_press_modifiers(Modifiers::COMMAND | Modifiers::SHIFT, Key::Z);
     h.run();
     assert_eq!(nms(&h)[2], 77.0, "redo");
@@ -207,7 +221,7 @@ fn undo_and_redo_from_the_keyboard() {
 #[test]
 fn a_malformed_file_keeps_the_open_design_and_shows_where() {
     let mut h = demo();
-    let before = h.state().doc.design.clone();
+    let before = h.state().doc().design.clone();
     let dir = tempfile::tempdir().unwrap();
     let bad = dir.path().join("broken.ron");
     std::fs::write(
@@ -218,7 +232,7 @@ fn a_malformed_file_keeps_the_open_design_and_shows_where() {
     let ctx = h.ctx.clone();
     h.state_mut().file_action(&ctx, FileAction::Open(bad));
     h.run();
-    assert_eq!(h.state().doc.design, before, "design untouched");
+    assert_eq!(h.state().doc().design, before, "design untouched");
     let msg = h.state().error_window.clone().expect("error window open");
     assert!(msg.contains("line 4"), "{msg}");
     assert!(
@@ -239,7 +253,7 @@ fn a_bad_start_file_opens_the_demo_and_says_why() {
     let app = App::new(Some(missing));
     let msg = app.error_window.clone().expect("error shown");
     assert!(msg.contains("nope.ron"), "{msg}");
-    assert_eq!(app.doc.design.layers.len(), 4, "demo design");
+    assert_eq!(app.doc().design.layers.len(), 4, "demo design");
 }
 
 #[test]
@@ -251,7 +265,7 @@ fn the_notation_box_builds_layers_and_shows_the_error_column() {
     assert_eq!(h.state().stack.notation, "(HL)^3 H", "typed");
     h.get_by_label("Build").click();
     h.run();
-    let d = &h.state().doc.design;
+    let d = &h.state().doc().design;
     assert_eq!(d.layers.len(), 7, "seven layers");
     assert_eq!(d.layers[0].material, "TiO2", "H is bound to TiO2");
     assert!(
@@ -264,7 +278,7 @@ fn the_notation_box_builds_layers_and_shows_the_error_column() {
     h.get_by_label("Build").click();
     h.run();
     assert_eq!(
-        h.state().doc.design.layers.len(),
+        h.state().doc().design.layers.len(),
         7,
         "a bad notation changes nothing"
     );
@@ -277,43 +291,62 @@ fn the_notation_box_builds_layers_and_shows_the_error_column() {
 }
 
 #[test]
-fn unsaved_changes_are_asked_about_before_new() {
+fn new_keeps_the_unsaved_design_and_closing_it_asks_first() {
     let mut h = demo();
     h.get_by_label("Layer 1 nm").set_value_accesskit(1.0);
     h.run();
     let ctx = h.ctx.clone();
     h.state_mut().file_action(&ctx, FileAction::New);
     h.run();
-    assert_eq!(h.state().doc.design.layers.len(), 4, "not yet replaced");
+    assert_eq!(
+        h.state().designs.len(),
+        2,
+        "a second design, nothing replaced"
+    );
+    assert!(
+        h.state().doc().design.layers.is_empty(),
+        "the new one is shown"
+    );
+    assert_eq!(
+        h.state().designs[0].doc.design.layers[0].nm.get(),
+        1.0,
+        "the edited design is still open with its edit"
+    );
+    let edited = h.state().designs[0].id;
+    h.state_mut()
+        .file_action(&ctx, FileAction::CloseDesign(edited));
+    h.run();
+    assert_eq!(h.state().designs.len(), 2, "not closed before the answer");
+    h.get_by_label_contains("has changes that are not saved");
     h.get_by_label("Cancel").click();
     h.run();
-    assert_eq!(
-        h.state().doc.design.layers[0].nm.get(),
-        1.0,
-        "cancel keeps the work"
-    );
-    h.state_mut().file_action(&ctx, FileAction::New);
+    assert_eq!(h.state().designs.len(), 2, "cancel keeps it open");
+    assert_eq!(h.state().doc().design.layers[0].nm.get(), 1.0, "and shown");
+    h.state_mut()
+        .file_action(&ctx, FileAction::CloseDesign(edited));
     h.run();
     h.get_by_label("Discard changes").click();
     h.run();
-    assert!(h.state().doc.design.layers.is_empty(), "new design");
+    assert_eq!(h.state().designs.len(), 1, "closed after discarding");
+    assert!(h.state().design(edited).is_none());
 }
 
 #[test]
 fn autosave_writes_a_recovery_file_that_is_offered_next_time() {
     let dir = tempfile::tempdir().unwrap();
-    let rec = dir.path().join("recovery.ron");
     let mut app = App::new(None);
-    app.spectrum.force_inline = true;
-    app.angles.force_inline = true;
-    app.recovery_path = Some(rec.clone());
+    app.force_inline = true;
+    app.recovery_dir = Some(dir.path().to_path_buf());
     let mut h = harness(app);
     h.run();
     h.get_by_label("Layer 2 nm").set_value_accesskit(42.0);
     h.run();
-    assert!(!rec.exists(), "not before the delay");
+    assert_eq!(recovery_files(dir.path()).len(), 0, "not before the delay");
     std::thread::sleep(stackwise::gui::AUTOSAVE_DELAY + std::time::Duration::from_millis(200));
     h.run();
+    let files = recovery_files(dir.path());
+    assert_eq!(files.len(), 1, "one unsaved design, one file: {files:?}");
+    let rec = files[0].clone();
     assert_eq!(
         file::load(&rec).unwrap().layers[1].nm.get(),
         42.0,
@@ -321,16 +354,19 @@ fn autosave_writes_a_recovery_file_that_is_offered_next_time() {
     );
 
     let mut next = App::new(None);
-    next.recovery_path = Some(rec.clone());
+    next.recovery_dir = Some(dir.path().to_path_buf());
     next.check_recovery();
-    next.spectrum.force_inline = true;
-    next.angles.force_inline = true;
+    next.force_inline = true;
     let mut h2 = harness(next);
     h2.run();
     h2.get_by_label("Recover").click();
     h2.run();
-    assert_eq!(h2.state().doc.design.layers[1].nm.get(), 42.0, "recovered");
-    assert!(h2.state().doc.is_dirty(), "recovered work is unsaved");
+    assert_eq!(
+        h2.state().doc().design.layers[1].nm.get(),
+        42.0,
+        "recovered"
+    );
+    assert!(h2.state().doc().is_dirty(), "recovered work is unsaved");
 }
 
 #[test]

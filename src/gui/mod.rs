@@ -1,12 +1,22 @@
 //! The design window.
 //!
-//! Layout: a menu bar; the stack on the left ([`stack`]); the spectrum and angle views in the
-//! centre ([`plots`]); a status line at the bottom. Panels read the [`Document`] and push
-//! [`Command`]s, which [`App::show`] applies through [`Document::apply`] at the end of the
-//! frame. A finished gesture (no drag, no text field being edited) becomes one undo step.
+//! Layout: a menu bar; a tab strip of the open designs ([`designs`]); the active design's
+//! stack on the left ([`stack`]); in the centre either the spectrum and angle views
+//! ([`plots`], with other designs overlaid on request) or the compare view ([`compare`]); a
+//! status line at the bottom. Panels read state and push [`Command`]s (edits of the active
+//! design) or [`WindowCommand`]s (which design is shown, overlaid, compared or closed);
+//! [`App::apply`] and [`App::apply_window`] carry them out at the end of the frame. A finished
+//! gesture (no drag, no text field being edited) becomes one undo step of the design edited.
 //! Results are cached per design and view settings ([`compute`]); slow sweeps run on a worker.
+//!
+//! Each open design keeps its own file, undo history, unsaved mark, caches and colour. New and
+//! Open add a design; closing one with unsaved changes asks first, and closing the window asks
+//! about every unsaved design in turn. Autosave writes one recovery file per unsaved design
+//! (`recovery-<session>-<n>.ron` in the recovery folder); all are offered at the next start.
 
+pub mod compare;
 pub mod compute;
+pub mod designs;
 pub mod document;
 pub mod history;
 pub mod materials;
@@ -23,7 +33,9 @@ use egui::{Key, KeyboardShortcut, Modifiers, RichText};
 
 use crate::design::{Design, Layer, Nm, file};
 
+pub use compare::CompareSettings;
 pub use compute::{Sweep, SweepCache, SweepResult};
+pub use designs::{DesignId, OpenDesign, WindowCommand};
 pub use document::{Command, CommandError, Document};
 pub use history::History;
 pub use plots::ViewSettings;
@@ -54,7 +66,7 @@ pub fn run(path: Option<PathBuf>) -> Result<()> {
         options,
         Box::new(move |cc| {
             let mut app = App::new(path);
-            app.recovery_path = eframe::storage_dir("Stackwise").map(|d| d.join("recovery.ron"));
+            app.recovery_dir = eframe::storage_dir("Stackwise").map(|d| d.join("recovery"));
             app.check_recovery();
             if let Some(storage) = cc.storage
                 && let Some(prefs) = eframe::get_value::<Prefs>(storage, APP_KEY)
@@ -109,24 +121,36 @@ fn fallback_demo() -> Design {
 /// A file action that may have to wait for the unsaved-changes question.
 #[derive(Clone, Debug, PartialEq)]
 pub enum FileAction {
-    /// Start an empty design.
+    /// Open another, empty design.
     New,
-    /// Ask for a file and open it.
+    /// Ask for a file and open it beside the designs already open.
     OpenDialog,
-    /// Open this file.
+    /// Open this file beside the others (or switch to it if it is open already).
     Open(PathBuf),
-    /// Save (asks for a file if the design has none).
+    /// Save the active design (asks for a file if it has none).
     Save,
-    /// Ask for a file and save to it.
+    /// Ask for a file and save the active design to it.
     SaveAsDialog,
-    /// Close the window.
+    /// Close one design (asks first if it has unsaved changes).
+    CloseDesign(DesignId),
+    /// Close the window (asks about every design with unsaved changes).
     Close,
 }
 
 enum DialogReply {
     Open(PathBuf),
-    SaveAs(PathBuf),
+    SaveAs(DesignId, PathBuf),
     Cancelled,
+}
+
+/// What the centre of the window shows.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub enum CentralView {
+    /// The spectrum and angle views of the active design, with any overlays.
+    #[default]
+    Plots,
+    /// The compare view.
+    Compare,
 }
 
 /// Side windows that can be open beside the main layout.
@@ -140,39 +164,46 @@ struct Windows {
 
 /// The whole window's state.
 pub struct App {
-    /// The open design.
-    pub doc: Document,
-    /// Left-panel state (selection, notation).
+    /// The open designs in tab order; never empty.
+    pub designs: Vec<OpenDesign>,
+    active: DesignId,
+    next_id: u64,
+    /// Left-panel state (selection, notation) of the active design.
     pub stack: StackUi,
-    /// View settings of the centre plots.
+    /// View settings of the centre plots (shared by all designs, so overlays line up).
     pub view: ViewSettings,
-    /// Cached spectrum.
-    pub spectrum: SweepCache,
-    /// Cached angle scan.
-    pub angles: SweepCache,
+    /// What the centre shows.
+    pub central: CentralView,
+    /// Designs overlaid on the active design's views (the active one itself is skipped).
+    pub overlays: Vec<DesignId>,
+    /// Settings of the compare view.
+    pub compare: CompareSettings,
+    /// Compute every sweep inline (tests and screenshots that must show a result at once).
+    pub force_inline: bool,
     spectrum_plot: plots::PlotCache,
     angle_plot: plots::PlotCache,
+    compare_plot: compare::CompareCache,
     /// Last refusal or error, for the status line.
     pub status: Option<String>,
     /// A file error shown in its own window until dismissed.
     pub error_window: Option<String>,
     /// Recently opened or saved files, newest first.
     pub recent: Vec<PathBuf>,
-    /// Where unsaved work is autosaved; `None` disables autosave (tests).
-    pub recovery_path: Option<PathBuf>,
-    recovery_offer: Option<Design>,
+    /// Folder of the recovery files; `None` disables autosave (tests).
+    pub recovery_dir: Option<PathBuf>,
+    session: String,
+    recovery_offer: Vec<(PathBuf, Design)>,
     pending: Option<FileAction>,
     dialog_tx: mpsc::Sender<DialogReply>,
     dialog_rx: mpsc::Receiver<DialogReply>,
     dialog_open: bool,
-    last_edit: Option<Instant>,
-    autosaved_revision: Option<u64>,
     allow_close: bool,
     /// Which side windows are open.
     windows: Windows,
     browser: materials::BrowserState,
     title_sent: String,
     commands: Vec<Command>,
+    window_commands: Vec<WindowCommand>,
 }
 
 impl App {
@@ -197,90 +228,307 @@ impl App {
         if let Some(p) = &doc.path {
             recent.push(p.clone());
         }
-        Self {
-            doc,
+        let session = std::time::SystemTime::now()
+            .duration_since(std::time::UNIX_EPOCH)
+            .map_or(0, |d| d.as_millis());
+        let mut app = Self {
+            designs: Vec::new(),
+            active: DesignId(0),
+            next_id: 0,
             stack: StackUi::default(),
             view,
-            spectrum: SweepCache::new("spectrum-sweep"),
-            angles: SweepCache::new("angle-sweep"),
+            central: CentralView::default(),
+            overlays: Vec::new(),
+            compare: CompareSettings::default(),
+            force_inline: false,
             spectrum_plot: plots::PlotCache::default(),
             angle_plot: plots::PlotCache::default(),
+            compare_plot: compare::CompareCache::default(),
             status: error.clone(),
             error_window: error,
             recent,
-            recovery_path: None,
-            recovery_offer: None,
+            recovery_dir: None,
+            session: format!("{session}-{}", std::process::id()),
+            recovery_offer: Vec::new(),
             pending: None,
             dialog_tx,
             dialog_rx,
             dialog_open: false,
-            last_edit: None,
-            autosaved_revision: None,
             allow_close: false,
             windows: Windows::default(),
             browser: materials::BrowserState::default(),
             title_sent: String::new(),
             commands: Vec::new(),
-        }
+            window_commands: Vec::new(),
+        };
+        app.add_design(doc);
+        app.compare.band_from_nm = (0.9 * app.view.angle_wavelength_nm).round();
+        app.compare.band_to_nm = (1.1 * app.view.angle_wavelength_nm).round();
+        app
     }
 
-    /// Looks for autosaved work from an earlier session and offers it.
-    pub fn check_recovery(&mut self) {
-        let Some(p) = &self.recovery_path else { return };
-        if !p.exists() {
-            return;
+    /// The design shown in the stack panel and views.
+    #[must_use]
+    pub fn active(&self) -> &OpenDesign {
+        let i = self.active_index();
+        &self.designs[i]
+    }
+
+    /// The design shown, for changing it.
+    pub fn active_mut(&mut self) -> &mut OpenDesign {
+        let i = self.active_index();
+        &mut self.designs[i]
+    }
+
+    /// The active design's document.
+    #[must_use]
+    pub fn doc(&self) -> &Document {
+        &self.active().doc
+    }
+
+    /// The position of the active design in [`App::designs`].
+    #[must_use]
+    pub fn active_index(&self) -> usize {
+        self.designs
+            .iter()
+            .position(|d| d.id == self.active)
+            .unwrap_or(0)
+    }
+
+    /// The open design with this id, if it is still open.
+    #[must_use]
+    pub fn design(&self, id: DesignId) -> Option<&OpenDesign> {
+        self.designs.iter().find(|d| d.id == id)
+    }
+
+    fn design_mut(&mut self, id: DesignId) -> Option<&mut OpenDesign> {
+        self.designs.iter_mut().find(|d| d.id == id)
+    }
+
+    /// The figures of the compare table: one row per design picked, in the order picked.
+    #[must_use]
+    pub fn compare_figures(&self) -> Vec<(DesignId, Result<compare::Figures, String>)> {
+        self.compare
+            .picked
+            .iter()
+            .filter_map(|&id| self.design(id))
+            .map(|d| (d.id, compare::figures_for(&d.band, &self.compare)))
+            .collect()
+    }
+
+    /// Adds `doc` as a new open design in the next free colour and shows it.
+    fn add_design(&mut self, doc: Document) -> DesignId {
+        self.next_id += 1;
+        let id = DesignId(self.next_id);
+        let taken: Vec<_> = self.designs.iter().map(|d| d.colour).collect();
+        let mut d = OpenDesign::new(id, doc, theme::next_design_colour(&taken));
+        d.set_inline(self.force_inline);
+        if self.designs.is_empty() || !self.view_is_shared() {
+            self.view = ViewSettings::for_design(&d.doc.design);
         }
-        match file::load(p) {
-            Ok(d) => self.recovery_offer = Some(d),
-            Err(e) => {
-                self.status = Some(format!("the recovery file could not be read: {e}"));
+        self.designs.push(d);
+        self.activate(id);
+        id
+    }
+
+    /// Whether the view settings are in use to compare designs (then a newly opened design
+    /// keeps them, so its curves line up with the others).
+    fn view_is_shared(&self) -> bool {
+        !self.overlays.is_empty() || self.central == CentralView::Compare
+    }
+
+    fn activate(&mut self, id: DesignId) {
+        if self.active != id {
+            self.stack.selected.clear();
+        }
+        self.active = id;
+    }
+
+    /// Looks for autosaved work from earlier sessions (every `recovery*.ron` in the recovery
+    /// folder) and offers it.
+    pub fn check_recovery(&mut self) {
+        let Some(dir) = &self.recovery_dir else {
+            return;
+        };
+        let Ok(entries) = std::fs::read_dir(dir) else {
+            return; // no folder yet: nothing was ever autosaved
+        };
+        let mut files: Vec<PathBuf> = entries
+            .filter_map(|e| e.ok().map(|e| e.path()))
+            .filter(|p| {
+                p.extension().is_some_and(|x| x == "ron")
+                    && p.file_name()
+                        .and_then(|n| n.to_str())
+                        .is_some_and(|n| n.starts_with("recovery"))
+            })
+            .collect();
+        files.sort();
+        for p in files {
+            match file::load(&p) {
+                Ok(d) => self.recovery_offer.push((p, d)),
+                Err(e) => {
+                    self.status = Some(format!("a recovery file could not be read: {e}"));
+                }
             }
         }
     }
 
-    /// Queues a command; it is applied at the end of the current (or next) frame.
+    /// Queues a command for the active design; it is applied at the end of the current (or
+    /// next) frame.
     pub fn push(&mut self, cmd: Command) {
         self.commands.push(cmd);
     }
 
-    /// Applies `cmd` now, reporting a refusal in the status line. Returns whether it was
-    /// carried out.
+    /// Queues a window command; it is applied at the end of the current (or next) frame.
+    pub fn push_window(&mut self, cmd: WindowCommand) {
+        self.window_commands.push(cmd);
+    }
+
+    /// Applies `cmd` now, reporting a refusal in the status line. [`Command::New`],
+    /// [`Command::Open`] and [`Command::Recover`] add a design (Open of a file already open
+    /// shows it instead); every other command goes to the active design. Returns whether it
+    /// was carried out.
     pub fn apply(&mut self, cmd: Command) -> bool {
-        let is_file = matches!(cmd, Command::Open(_) | Command::Save | Command::SaveAs(_));
-        let opened = match &cmd {
-            Command::Open(p) | Command::SaveAs(p) => Some(p.clone()),
-            Command::Save => self.doc.path.clone(),
+        match cmd {
+            Command::New => {
+                self.add_design(Document::new(Design::new_empty("Untitled"), None));
+                self.status = None;
+                true
+            }
+            Command::Open(p) => {
+                if let Some(id) = self.open_with_path(&p) {
+                    self.activate(id);
+                    self.remember(&p);
+                    self.status = None;
+                    return true;
+                }
+                let mut doc = Document::new(Design::new_empty(""), None);
+                match doc.apply(Command::Open(p.clone())) {
+                    Ok(()) => {
+                        self.add_design(doc);
+                        self.remember(&p);
+                        self.status = None;
+                        true
+                    }
+                    Err(e) => {
+                        self.refused(&e.to_string(), true);
+                        false
+                    }
+                }
+            }
+            Command::Recover(d) => {
+                let mut doc = Document::new(Design::new_empty(""), None);
+                match doc.apply(Command::Recover(d)) {
+                    Ok(()) => {
+                        let id = self.add_design(doc);
+                        if let Some(o) = self.design_mut(id) {
+                            o.last_edit = Some(Instant::now());
+                        }
+                        true
+                    }
+                    Err(e) => {
+                        self.refused(&e.to_string(), true);
+                        false
+                    }
+                }
+            }
+            cmd => self.apply_to(self.active, cmd),
+        }
+    }
+
+    /// Applies a document command to the design `id`.
+    fn apply_to(&mut self, id: DesignId, cmd: Command) -> bool {
+        let is_file = matches!(cmd, Command::Save | Command::SaveAs(_));
+        let Some(d) = self.design_mut(id) else {
+            return false;
+        };
+        let saved_to = match &cmd {
+            Command::SaveAs(p) => Some(p.clone()),
+            Command::Save => d.doc.path.clone(),
             _ => None,
         };
-        let resets = matches!(cmd, Command::New | Command::Open(_) | Command::Recover(_));
-        let before = self.doc.revision;
-        match self.doc.apply(cmd) {
+        let before = d.doc.revision;
+        match d.doc.apply(cmd) {
             Ok(()) => {
+                if d.doc.revision != before {
+                    d.last_edit = Some(Instant::now());
+                }
+                let clean = !d.doc.is_dirty();
                 self.status = None;
-                if let Some(p) = opened {
+                if let Some(p) = saved_to {
                     self.remember(&p);
                 }
-                if resets {
-                    self.view = ViewSettings::for_design(&self.doc.design);
-                    self.stack.selected.clear();
-                }
-                if self.doc.revision != before {
-                    self.last_edit = Some(Instant::now());
-                }
-                if !self.doc.is_dirty() {
-                    self.remove_recovery();
+                if clean {
+                    self.remove_recovery(id);
                 }
                 true
             }
             Err(e) => {
-                let msg = e.to_string();
-                log::warn!("{msg}");
-                if is_file {
-                    self.error_window = Some(msg.clone());
-                }
-                self.status = Some(msg);
+                self.refused(&e.to_string(), is_file);
                 false
             }
+        }
+    }
+
+    fn refused(&mut self, msg: &str, is_file: bool) {
+        log::warn!("{msg}");
+        if is_file {
+            self.error_window = Some(msg.to_owned());
+        }
+        self.status = Some(msg.to_owned());
+    }
+
+    /// The open design whose file is `p` (compared as canonical paths where they exist).
+    fn open_with_path(&self, p: &Path) -> Option<DesignId> {
+        let canon = |x: &Path| std::fs::canonicalize(x).unwrap_or_else(|_| x.to_path_buf());
+        let want = canon(p);
+        self.designs
+            .iter()
+            .find(|d| d.doc.path.as_deref().is_some_and(|q| canon(q) == want))
+            .map(|d| d.id)
+    }
+
+    /// Applies a window command now (closing a design with unsaved changes asks first).
+    pub fn apply_window(&mut self, cmd: WindowCommand) {
+        match cmd {
+            WindowCommand::Activate(id) => {
+                if self.design(id).is_some() {
+                    self.activate(id);
+                }
+            }
+            WindowCommand::Close(id) => self.request_close_design(id),
+            WindowCommand::SetOverlay { id, on } => set_member(&mut self.overlays, id, on),
+            WindowCommand::SetCompared { id, on } => {
+                set_member(&mut self.compare.picked, id, on);
+            }
+        }
+    }
+
+    fn request_close_design(&mut self, id: DesignId) {
+        let Some(d) = self.design(id) else { return };
+        if d.doc.is_dirty() {
+            self.activate(id);
+            self.pending = Some(FileAction::CloseDesign(id));
+        } else {
+            self.close_design(id);
+        }
+    }
+
+    /// Closes design `id` at once (the caller has asked about unsaved changes); the last
+    /// design closed leaves an empty one.
+    fn close_design(&mut self, id: DesignId) {
+        let Some(i) = self.designs.iter().position(|d| d.id == id) else {
+            return;
+        };
+        self.remove_recovery(id);
+        self.designs.remove(i);
+        self.overlays.retain(|&x| x != id);
+        self.compare.picked.retain(|&x| x != id);
+        if self.designs.is_empty() {
+            self.add_design(Document::new(Design::new_empty("Untitled"), None));
+        } else if self.active == id {
+            let next = self.designs[i.min(self.designs.len() - 1)].id;
+            self.activate(next);
         }
     }
 
@@ -290,17 +538,25 @@ impl App {
         self.recent.truncate(MAX_RECENT);
     }
 
+    /// The first open design with unsaved changes.
+    fn first_dirty(&self) -> Option<DesignId> {
+        self.designs.iter().find(|d| d.doc.is_dirty()).map(|d| d.id)
+    }
+
     /// Starts a file action, asking about unsaved changes first where work could be lost.
     pub fn file_action(&mut self, ctx: &egui::Context, action: FileAction) {
-        let discards = matches!(
-            action,
-            FileAction::New | FileAction::OpenDialog | FileAction::Open(_) | FileAction::Close
-        );
-        if discards && self.doc.is_dirty() && !self.allow_close {
-            self.pending = Some(action);
-            return;
+        match action {
+            FileAction::CloseDesign(id) => self.request_close_design(id),
+            FileAction::Close if !self.allow_close => {
+                if let Some(id) = self.first_dirty() {
+                    self.activate(id);
+                    self.pending = Some(FileAction::Close);
+                } else {
+                    self.do_file_action(ctx, FileAction::Close);
+                }
+            }
+            other => self.do_file_action(ctx, other),
         }
-        self.do_file_action(ctx, action);
     }
 
     fn do_file_action(&mut self, ctx: &egui::Context, action: FileAction) {
@@ -311,35 +567,43 @@ impl App {
             FileAction::Open(p) => {
                 self.apply(Command::Open(p));
             }
-            FileAction::OpenDialog => self.spawn_dialog(ctx, false),
+            FileAction::OpenDialog => self.spawn_dialog(ctx, None),
             FileAction::Save => {
-                if self.doc.path.is_some() {
+                if self.doc().path.is_some() {
                     self.apply(Command::Save);
                 } else {
-                    self.spawn_dialog(ctx, true);
+                    self.spawn_dialog(ctx, Some(self.active));
                 }
             }
-            FileAction::SaveAsDialog => self.spawn_dialog(ctx, true),
+            FileAction::SaveAsDialog => self.spawn_dialog(ctx, Some(self.active)),
+            FileAction::CloseDesign(id) => self.close_design(id),
             FileAction::Close => {
-                self.remove_recovery();
+                let ids: Vec<DesignId> = self.designs.iter().map(|d| d.id).collect();
+                for id in ids {
+                    self.remove_recovery(id);
+                }
                 self.allow_close = true;
                 ctx.send_viewport_cmd(egui::ViewportCommand::Close);
             }
         }
     }
 
-    fn spawn_dialog(&mut self, ctx: &egui::Context, save: bool) {
+    /// Opens a file dialog on a named thread: Save As for design `save` if given, else Open.
+    fn spawn_dialog(&mut self, ctx: &egui::Context, save: Option<DesignId>) {
         if self.dialog_open {
             return;
         }
         let tx = self.dialog_tx.clone();
         let ctx = ctx.clone();
-        let dir = self
-            .doc
+        let doc = match save.and_then(|id| self.design(id)) {
+            Some(d) => &d.doc,
+            None => self.doc(),
+        };
+        let dir = doc
             .path
             .as_ref()
             .and_then(|p| p.parent().map(Path::to_path_buf));
-        let name = format!("{}.ron", self.doc.design.name);
+        let name = format!("{}.ron", doc.design.name);
         let spawned = std::thread::Builder::new()
             .name("file-dialog".into())
             .spawn(move || {
@@ -348,10 +612,10 @@ impl App {
                 if let Some(d) = dir {
                     dialog = dialog.set_directory(d);
                 }
-                let reply = if save {
+                let reply = if let Some(id) = save {
                     pollster::block_on(dialog.set_file_name(name).save_file())
                         .map_or(DialogReply::Cancelled, |h| {
-                            DialogReply::SaveAs(h.path().into())
+                            DialogReply::SaveAs(id, h.path().into())
                         })
                 } else {
                     pollster::block_on(dialog.pick_file()).map_or(DialogReply::Cancelled, |h| {
@@ -375,16 +639,16 @@ impl App {
                 DialogReply::Open(p) => {
                     self.apply(Command::Open(p));
                 }
-                DialogReply::SaveAs(p) => {
+                DialogReply::SaveAs(id, p) => {
                     let p = if p.extension().is_none() {
                         p.with_extension("ron")
                     } else {
                         p
                     };
-                    if self.apply(Command::SaveAs(p))
+                    if self.apply_to(id, Command::SaveAs(p))
                         && let Some(next) = self.pending.take()
                     {
-                        self.do_file_action(ctx, next);
+                        self.file_action(ctx, next);
                     }
                 }
                 DialogReply::Cancelled => {}
@@ -397,7 +661,7 @@ impl App {
                 .map(|f| f.path().to_path_buf())
                 .collect()
         });
-        if let Some(p) = dropped.into_iter().next() {
+        for p in dropped {
             self.file_action(ctx, FileAction::Open(p));
         }
         let shortcut = |m: Modifiers, k: Key| {
@@ -420,12 +684,19 @@ impl App {
         if shortcut(Modifiers::COMMAND, Key::N) {
             self.file_action(ctx, FileAction::New);
         }
+        if shortcut(Modifiers::COMMAND, Key::W) {
+            self.push_window(WindowCommand::Close(self.active));
+        }
         if ctx.input(|i| i.viewport().close_requested()) && !self.allow_close {
-            if self.doc.is_dirty() {
+            if let Some(id) = self.first_dirty() {
                 ctx.send_viewport_cmd(egui::ViewportCommand::CancelClose);
+                self.activate(id);
                 self.pending = Some(FileAction::Close);
             } else {
-                self.remove_recovery();
+                let ids: Vec<DesignId> = self.designs.iter().map(|d| d.id).collect();
+                for id in ids {
+                    self.remove_recovery(id);
+                }
             }
         }
     }
@@ -439,38 +710,134 @@ impl App {
         self.update_sweeps(&ctx);
 
         egui::Panel::top("menu").show(ui, |ui| self.menu_ui(ui));
+        egui::Panel::top("designs").show(ui, |ui| {
+            let mut out = Vec::new();
+            designs::tabs_ui(ui, &self.designs, self.active, &mut out);
+            self.window_commands.extend(out);
+        });
         egui::Panel::bottom("status").show(ui, |ui| self.status_ui(ui));
         egui::Panel::left("stack")
             .resizable(true)
             .default_size(560.0)
             .show(ui, |ui| {
                 let mut out = Vec::new();
-                stack::stack_ui(ui, &self.doc.design, &mut self.stack, &mut out);
+                let i = self.active_index();
+                stack::stack_ui(ui, &self.designs[i].doc.design, &mut self.stack, &mut out);
                 self.commands.extend(out);
             });
-        egui::CentralPanel::default().show(ui, |ui| {
-            let h = ui.available_height();
-            ui.allocate_ui(egui::vec2(ui.available_width(), h * 0.58), |ui| {
-                plots::spectrum_ui(ui, &mut self.view, &self.spectrum, &mut self.spectrum_plot);
-            });
-            ui.separator();
-            plots::angle_ui(ui, &mut self.view, &self.angles, &mut self.angle_plot);
-        });
+        egui::CentralPanel::default().show(ui, |ui| self.central_ui(ui));
         self.dialogs_ui(&ctx);
 
-        if !self.commands.is_empty() {
+        if !self.commands.is_empty() || !self.window_commands.is_empty() {
             self.apply_queued();
             ctx.request_repaint();
         }
         let busy = ctx.egui_is_using_pointer() || ctx.memory(|m| m.focused().is_some());
         if !busy {
-            self.doc.commit();
+            // Only the active design is edited, but a design switched away from mid-gesture
+            // still gets its last step recorded.
+            for d in &mut self.designs {
+                d.doc.commit();
+            }
         }
         self.autosave(&ctx);
-        let title = self.doc.title();
+        let title = self.doc().title();
         if title != self.title_sent {
             ctx.send_viewport_cmd(egui::ViewportCommand::Title(title.clone()));
             self.title_sent = title;
+        }
+    }
+
+    fn central_ui(&mut self, ui: &mut egui::Ui) {
+        ui.horizontal_wrapped(|ui| {
+            ui.selectable_value(&mut self.central, CentralView::Plots, "Spectrum and angle");
+            ui.selectable_value(&mut self.central, CentralView::Compare, "Compare designs");
+            if self.central == CentralView::Plots {
+                ui.separator();
+                ui.label("overlay:");
+                if self.designs.len() < 2 {
+                    ui.label(RichText::new("open another design to overlay it").weak());
+                }
+                for d in &self.designs {
+                    if d.id == self.active {
+                        continue;
+                    }
+                    let mut on = self.overlays.contains(&d.id);
+                    let text = RichText::new(&d.doc.design.name).color(d.colour);
+                    if ui.checkbox(&mut on, text).changed() {
+                        self.window_commands
+                            .push(WindowCommand::SetOverlay { id: d.id, on });
+                    }
+                }
+            }
+        });
+        ui.separator();
+        let i = self.active_index();
+        match self.central {
+            CentralView::Plots => {
+                let (spectrum, angle) = (self.view.spectrum_sweep(), self.view.angle_sweep());
+                let overlays = |angles: bool| -> Vec<plots::Overlay<'_>> {
+                    self.designs
+                        .iter()
+                        .filter(|d| d.id != self.active && self.overlays.contains(&d.id))
+                        .filter_map(|d| {
+                            let (c, s) = if angles {
+                                (&d.angles, &angle)
+                            } else {
+                                (&d.spectrum, &spectrum)
+                            };
+                            // Only a result for the same sweep lines up with the active one.
+                            c.is_current(&d.doc.design, s).then_some(plots::Overlay {
+                                name: &d.doc.design.name,
+                                colour: d.colour,
+                                sweeps: c,
+                            })
+                        })
+                        .collect()
+                };
+                let (over_s, over_a) = (overlays(false), overlays(true));
+                let active = &self.designs[i];
+                let h = ui.available_height();
+                ui.allocate_ui(egui::vec2(ui.available_width(), h * 0.58), |ui| {
+                    plots::spectrum_ui(
+                        ui,
+                        &mut self.view,
+                        &active.spectrum,
+                        &over_s,
+                        &mut self.spectrum_plot,
+                    );
+                });
+                ui.separator();
+                plots::angle_ui(
+                    ui,
+                    &mut self.view,
+                    &active.angles,
+                    &over_a,
+                    &mut self.angle_plot,
+                );
+            }
+            CentralView::Compare => {
+                let entries: Vec<compare::Entry<'_>> = self
+                    .designs
+                    .iter()
+                    .map(|d| compare::Entry {
+                        id: d.id,
+                        name: &d.doc.design.name,
+                        colour: d.colour,
+                        spectrum: &d.spectrum,
+                        band: &d.band,
+                    })
+                    .collect();
+                let mut out = Vec::new();
+                compare::compare_ui(
+                    ui,
+                    &mut self.compare,
+                    &entries,
+                    &mut self.compare_plot,
+                    &mut out,
+                );
+                self.window_commands.extend(out);
+            }
         }
     }
 
@@ -478,62 +845,90 @@ impl App {
         for cmd in std::mem::take(&mut self.commands) {
             self.apply(cmd);
         }
+        for cmd in std::mem::take(&mut self.window_commands) {
+            self.apply_window(cmd);
+        }
     }
 
+    /// Brings the caches in use up to date: the active design's views, the overlaid designs'
+    /// views (same sweeps), and in the compare view the picked designs' spectra and bands.
     fn update_sweeps(&mut self, ctx: &egui::Context) {
         let wake = |c: &egui::Context| {
             let c = c.clone();
             move || c.request_repaint()
         };
         let s = self.view.spectrum_sweep();
-        self.spectrum.update(&self.doc.design, &s, wake(ctx));
         let a = self.view.angle_sweep();
-        self.angles.update(&self.doc.design, &a, wake(ctx));
-        if self.spectrum.busy() || self.angles.busy() {
+        let band = self.compare.band_sweep();
+        let comparing = self.central == CentralView::Compare;
+        let mut busy = false;
+        for d in &mut self.designs {
+            d.set_inline(self.force_inline);
+            let shown = d.id == self.active || self.overlays.contains(&d.id);
+            let compared = comparing && self.compare.picked.contains(&d.id);
+            if shown || compared {
+                d.spectrum.update(&d.doc.design, &s, wake(ctx));
+            }
+            if shown {
+                d.angles.update(&d.doc.design, &a, wake(ctx));
+            }
+            if compared {
+                d.band.update(&d.doc.design, &band, wake(ctx));
+            }
+            busy |= d.spectrum.busy() || d.angles.busy() || d.band.busy();
+        }
+        if busy {
             ctx.request_repaint_after(Duration::from_millis(50));
         }
     }
 
+    /// Writes each unsaved design to its own recovery file a while after its last edit.
     fn autosave(&mut self, ctx: &egui::Context) {
-        let Some(path) = self.recovery_path.clone() else {
+        let Some(dir) = self.recovery_dir.clone() else {
             return;
         };
-        if !self.doc.is_dirty() || self.autosaved_revision == Some(self.doc.revision) {
-            return;
-        }
-        let Some(t) = self.last_edit else { return };
-        let since = t.elapsed();
-        if since < AUTOSAVE_DELAY {
-            ctx.request_repaint_after(AUTOSAVE_DELAY.saturating_sub(since));
-            return;
-        }
-        if let Some(dir) = path.parent()
-            && let Err(e) = std::fs::create_dir_all(dir)
-        {
-            self.status = Some(format!(
-                "autosave failed: cannot create {}: {e}",
-                dir.display()
-            ));
-            self.autosaved_revision = Some(self.doc.revision);
-            return;
-        }
-        match file::save(&path, &self.doc.design) {
-            Ok(()) => self.autosaved_revision = Some(self.doc.revision),
-            Err(e) => {
-                self.status = Some(format!("autosave failed: {e}"));
-                self.autosaved_revision = Some(self.doc.revision);
+        let mut problem = None;
+        for d in &mut self.designs {
+            if !d.doc.is_dirty() || d.autosaved_revision == Some(d.doc.revision) {
+                continue;
             }
+            let Some(t) = d.last_edit else { continue };
+            let since = t.elapsed();
+            if since < AUTOSAVE_DELAY {
+                ctx.request_repaint_after(AUTOSAVE_DELAY.saturating_sub(since));
+                continue;
+            }
+            // Marked as done even on failure: the error is shown once, not every frame.
+            d.autosaved_revision = Some(d.doc.revision);
+            if let Err(e) = std::fs::create_dir_all(&dir) {
+                problem = Some(format!(
+                    "autosave failed: cannot create {}: {e}",
+                    dir.display()
+                ));
+                continue;
+            }
+            let path = d.recovery_file.get_or_insert_with(|| {
+                dir.join(format!("recovery-{}-{}.ron", self.session, d.id.0))
+            });
+            if let Err(e) = file::save(path, &d.doc.design) {
+                problem = Some(format!("autosave of \"{}\" failed: {e}", d.doc.design.name));
+            }
+        }
+        if problem.is_some() {
+            self.status = problem;
         }
     }
 
-    fn remove_recovery(&mut self) {
-        if let Some(p) = &self.recovery_path
+    /// Removes design `id`'s recovery file, if it has one.
+    fn remove_recovery(&mut self, id: DesignId) {
+        let Some(d) = self.design_mut(id) else { return };
+        d.autosaved_revision = None;
+        if let Some(p) = d.recovery_file.take()
             && p.exists()
-            && let Err(e) = std::fs::remove_file(p)
+            && let Err(e) = std::fs::remove_file(&p)
         {
             log::warn!("cannot remove the recovery file {}: {e}", p.display());
         }
-        self.autosaved_revision = None;
     }
 
     fn menu_ui(&mut self, ui: &mut egui::Ui) {
@@ -562,14 +957,18 @@ impl App {
                 if ui.button("Save as… (Ctrl+Shift+S)").clicked() {
                     self.file_action(&ctx, FileAction::SaveAsDialog);
                 }
+                if ui.button("Close design (Ctrl+W)").clicked() {
+                    self.file_action(&ctx, FileAction::CloseDesign(self.active));
+                }
                 ui.separator();
                 if ui.button("Quit").clicked() {
                     self.file_action(&ctx, FileAction::Close);
                 }
             });
             ui.menu_button("Edit", |ui| {
-                let can_undo = self.doc.history.can_undo(&self.doc.design);
-                let can_redo = self.doc.history.can_redo(&self.doc.design);
+                let doc = self.doc();
+                let can_undo = doc.history.can_undo(&doc.design);
+                let can_redo = doc.history.can_redo(&doc.design);
                 if ui
                     .add_enabled(can_undo, egui::Button::new("Undo (Ctrl+Z)"))
                     .clicked()
@@ -591,7 +990,7 @@ impl App {
             }
             ui.separator();
             let file = self
-                .doc
+                .doc()
                 .path
                 .as_ref()
                 .map_or_else(|| "not saved yet".to_owned(), |p| p.display().to_string());
@@ -600,8 +999,9 @@ impl App {
     }
 
     fn status_ui(&self, ui: &mut egui::Ui) {
+        let active = self.active();
         ui.horizontal_wrapped(|ui| {
-            match self.spectrum.result() {
+            match active.spectrum.result() {
                 Some(Ok(r)) => {
                     ui.label(format!(
                         "spectrum: {} points in {:.1} ms",
@@ -616,19 +1016,23 @@ impl App {
                     ui.label("spectrum: —");
                 }
             }
-            if let Some(Ok(r)) = self.angles.result() {
+            if let Some(Ok(r)) = active.angles.result() {
                 ui.label(format!(
                     "· angles: {} points in {:.1} ms",
                     r.x.len(),
                     r.elapsed.as_secs_f64() * 1000.0
                 ));
             }
-            if self.spectrum.busy() || self.angles.busy() {
+            if self
+                .designs
+                .iter()
+                .any(|d| d.spectrum.busy() || d.angles.busy() || d.band.busy())
+            {
                 ui.spinner();
                 ui.label("computing…");
             }
             let mut warnings: Vec<&String> = Vec::new();
-            for c in [&self.spectrum, &self.angles] {
+            for c in [&active.spectrum, &active.angles] {
                 if let Some(Ok(r)) = c.result() {
                     for w in &r.warnings {
                         if !warnings.contains(&w) {
@@ -663,6 +1067,74 @@ impl App {
         self.windows.cautions = open;
     }
 
+    /// The design the unsaved-changes question is about, for a pending action.
+    fn asked_about(&self, action: &FileAction) -> Option<DesignId> {
+        match action {
+            FileAction::CloseDesign(id) => {
+                self.design(*id).filter(|d| d.doc.is_dirty()).map(|d| d.id)
+            }
+            FileAction::Close => self.first_dirty(),
+            _ => None,
+        }
+    }
+
+    fn unsaved_prompt_ui(&mut self, ctx: &egui::Context, action: &FileAction) {
+        let Some(id) = self.asked_about(action) else {
+            // Nothing unsaved any more (e.g. saved meanwhile): go ahead.
+            self.pending = None;
+            self.file_action(ctx, action.clone());
+            return;
+        };
+        let name = self
+            .design(id)
+            .map(|d| d.doc.design.name.clone())
+            .unwrap_or_default();
+        let others = self
+            .designs
+            .iter()
+            .filter(|d| d.id != id && d.doc.is_dirty())
+            .count();
+        egui::Window::new("Unsaved changes")
+            .collapsible(false)
+            .resizable(false)
+            .anchor(egui::Align2::CENTER_CENTER, [0.0, 0.0])
+            .show(ctx, |ui| {
+                ui.label(format!("\"{name}\" has changes that are not saved."));
+                if *action == FileAction::Close && others > 0 {
+                    ui.label(format!(
+                        "{others} other open design(s) have unsaved changes too; you will be \
+                         asked about each."
+                    ));
+                }
+                ui.horizontal(|ui| {
+                    if ui.button("Save").clicked() {
+                        let has_path = self.design(id).is_some_and(|d| d.doc.path.is_some());
+                        if has_path {
+                            if self.apply_to(id, Command::Save) {
+                                self.pending = None;
+                                self.file_action(ctx, action.clone());
+                            }
+                        } else {
+                            // Continues with `pending` once the Save As dialog answers.
+                            self.spawn_dialog(ctx, Some(id));
+                        }
+                    }
+                    if ui.button("Discard changes").clicked() {
+                        self.pending = None;
+                        self.remove_recovery(id);
+                        // Discarded on purpose: the next step must not ask again.
+                        if let Some(d) = self.design_mut(id) {
+                            d.doc.saved = d.doc.design.clone();
+                        }
+                        self.file_action(ctx, action.clone());
+                    }
+                    if ui.button("Cancel").clicked() {
+                        self.pending = None;
+                    }
+                });
+            });
+    }
+
     fn dialogs_ui(&mut self, ctx: &egui::Context) {
         if let Some(msg) = self.error_window.clone() {
             let mut open = true;
@@ -671,7 +1143,7 @@ impl App {
                 .open(&mut open)
                 .show(ctx, |ui| {
                     ui.label(&msg);
-                    ui.label(RichText::new("The design in the window is unchanged.").weak());
+                    ui.label(RichText::new("The designs in the window are unchanged.").weak());
                     if ui.button("OK").clicked() {
                         self.error_window = None;
                     }
@@ -683,58 +1155,38 @@ impl App {
         if let Some(action) = self.pending.clone()
             && !self.dialog_open
         {
-            egui::Window::new("Unsaved changes")
-                .collapsible(false)
-                .resizable(false)
-                .anchor(egui::Align2::CENTER_CENTER, [0.0, 0.0])
-                .show(ctx, |ui| {
-                    ui.label(format!(
-                        "\"{}\" has changes that are not saved.",
-                        self.doc.design.name
-                    ));
-                    ui.horizontal(|ui| {
-                        if ui.button("Save").clicked() {
-                            if self.doc.path.is_some() {
-                                if self.apply(Command::Save) {
-                                    self.pending = None;
-                                    self.do_file_action(ctx, action.clone());
-                                }
-                            } else {
-                                // Continues with `pending` once the Save As dialog answers.
-                                self.spawn_dialog(ctx, true);
-                            }
-                        }
-                        if ui.button("Discard changes").clicked() {
-                            self.pending = None;
-                            self.remove_recovery();
-                            // Discarded on purpose: the next action must not ask again.
-                            self.doc.saved = self.doc.design.clone();
-                            self.do_file_action(ctx, action.clone());
-                        }
-                        if ui.button("Cancel").clicked() {
-                            self.pending = None;
-                        }
-                    });
-                });
+            self.unsaved_prompt_ui(ctx, &action);
         }
-        if let Some(d) = self.recovery_offer.clone() {
+        if !self.recovery_offer.is_empty() {
             egui::Window::new("Recover unsaved work?")
                 .collapsible(false)
                 .anchor(egui::Align2::CENTER_CENTER, [0.0, 0.0])
                 .show(ctx, |ui| {
-                    ui.label(format!(
-                        "Stackwise found unsaved work from an earlier session: \"{}\", {} layers.",
-                        d.name,
-                        d.layers.len()
-                    ));
+                    ui.label("Stackwise found unsaved work from an earlier session:");
+                    for (_, d) in &self.recovery_offer {
+                        ui.label(format!("\"{}\", {} layers", d.name, d.layers.len()));
+                    }
                     ui.horizontal(|ui| {
                         if ui.button("Recover").clicked() {
-                            self.recovery_offer = None;
-                            self.apply(Command::Recover(Box::new(d.clone())));
+                            for (path, d) in std::mem::take(&mut self.recovery_offer) {
+                                if self.apply(Command::Recover(Box::new(d))) {
+                                    // The file stays until the work is saved or closed.
+                                    let id = self.active;
+                                    if let Some(o) = self.design_mut(id) {
+                                        o.recovery_file = Some(path);
+                                    }
+                                }
+                            }
                         }
                         if ui.button("Discard it").clicked() {
-                            self.recovery_offer = None;
-                            self.remove_recovery();
+                            for (path, _) in std::mem::take(&mut self.recovery_offer) {
+                                if let Err(e) = std::fs::remove_file(&path) {
+                                    log::warn!(
+                                        "cannot remove the recovery file {}: {e}",
+                                        path.display()
+                                    );
+                                }
+                            }
                         }
                     });
                 });
@@ -743,12 +1195,17 @@ impl App {
         if self.windows.materials {
             let mut open = true;
             let mut action = None;
+            let i = self.active_index();
             egui::Window::new("Materials")
                 .open(&mut open)
                 .default_size([640.0, 560.0])
                 .show(ctx, |ui| {
                     egui::ScrollArea::vertical().show(ui, |ui| {
-                        action = materials::materials_ui(ui, &mut self.browser, &self.doc.design);
+                        action = materials::materials_ui(
+                            ui,
+                            &mut self.browser,
+                            &self.designs[i].doc.design,
+                        );
                     });
                 });
             self.windows.materials = open;
@@ -762,6 +1219,17 @@ impl App {
                 });
             }
         }
+    }
+}
+
+/// Adds `id` to `list` (once) or removes it.
+fn set_member(list: &mut Vec<DesignId>, id: DesignId, on: bool) {
+    if on {
+        if !list.contains(&id) {
+            list.push(id);
+        }
+    } else {
+        list.retain(|&x| x != id);
     }
 }
 

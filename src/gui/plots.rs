@@ -161,6 +161,17 @@ impl ViewSettings {
     }
 }
 
+/// Another open design drawn over the active one's view: its curves in its colour, named
+/// after it in the legend. Its cache must hold the same sweep as the active design's.
+pub struct Overlay<'a> {
+    /// The design's name (legend prefix).
+    pub name: &'a str,
+    /// The design's colour.
+    pub colour: Color32,
+    /// Its cached sweep.
+    pub sweeps: &'a SweepCache,
+}
+
 /// One drawable curve.
 struct Series {
     name: String,
@@ -172,15 +183,21 @@ struct Series {
 /// Plot-ready points, rebuilt only when the result or the display choices change.
 #[derive(Default)]
 pub struct PlotCache {
-    key: Option<(u64, Curves, XAxis, YAxis)>,
+    key: Option<PlotKey>,
     series: Vec<Series>,
 }
 
+/// What the points were built from: the active sweep's generation, the display choices, and
+/// each overlay's name, colour and generation.
+type PlotKey = (u64, Curves, XAxis, YAxis, Vec<(String, Color32, u64)>);
+
+/// The series of one result; `tint` names and colours an overlaid design's curves.
 fn build_series(
     result: &SweepResult,
     curves: Curves,
     x: impl Fn(f64) -> f64,
     y: YAxis,
+    tint: Option<(&str, Color32)>,
 ) -> Vec<Series> {
     let c = &result.curves;
     let quantities: [(&str, bool, Color32, [&Vec<f64>; 3]); 3] = [
@@ -236,6 +253,10 @@ fn build_series(
                     (yv.is_finite() && xv.is_finite()).then_some(PlotPoint::new(xv, yv))
                 })
                 .collect();
+            let (name, colour) = match tint {
+                Some((design, c)) => (format!("{design}: {name}"), c),
+                None => (name, colour),
+            };
             out.push(Series {
                 name,
                 colour: theme::pol_shade(colour, pol),
@@ -303,29 +324,54 @@ fn draw(
 fn refresh(
     cache: &mut PlotCache,
     sweeps: &SweepCache,
-    generation: u64,
+    overlays: &[Overlay<'_>],
     curves: Curves,
     x: XAxis,
     y: YAxis,
     angle: bool,
 ) {
-    let key = (generation, curves, x, y);
-    if cache.key == Some(key) {
+    let key = (
+        sweeps.generation(),
+        curves,
+        x,
+        y,
+        overlays
+            .iter()
+            .map(|o| (o.name.to_owned(), o.colour, o.sweeps.generation()))
+            .collect(),
+    );
+    if cache.key.as_ref() == Some(&key) {
         return;
     }
-    cache.series = match sweeps.result() {
-        Some(Ok(r)) if angle => build_series(r, curves, |v| v, YAxis::Percent),
-        Some(Ok(r)) => build_series(r, curves, |nm| x.value_at_nm(nm), y),
+    let one = |c: &SweepCache, tint: Option<(&str, Color32)>| match c.result() {
+        Some(Ok(r)) if angle => build_series(r, curves, |v| v, YAxis::Percent, tint),
+        Some(Ok(r)) => build_series(r, curves, |nm| x.value_at_nm(nm), y, tint),
         _ => Vec::new(),
     };
+    cache.series = one(sweeps, None);
+    for o in overlays {
+        cache.series.extend(one(o.sweeps, Some((o.name, o.colour))));
+    }
     cache.key = Some(key);
 }
 
-/// The spectrum view with its control row.
+fn overlay_errors_ui(ui: &mut egui::Ui, overlays: &[Overlay<'_>]) {
+    for o in overlays {
+        if let Some(Err(e)) = o.sweeps.result() {
+            ui.colored_label(
+                ui.visuals().error_fg_color,
+                format!("{}: cannot compute: {e}", o.name),
+            );
+        }
+    }
+}
+
+/// The spectrum view with its control row; `overlays` are drawn over the active design.
 pub fn spectrum_ui(
     ui: &mut egui::Ui,
     s: &mut ViewSettings,
     sweeps: &SweepCache,
+    overlays: &[Overlay<'_>],
     plot: &mut PlotCache,
 ) {
     ui.horizontal_wrapped(|ui| {
@@ -375,10 +421,11 @@ pub fn spectrum_ui(
     if let Some(Err(e)) = sweeps.result() {
         ui.colored_label(ui.visuals().error_fg_color, format!("cannot compute: {e}"));
     }
+    overlay_errors_ui(ui, overlays);
     refresh(
         plot,
         sweeps,
-        sweeps.generation(),
+        overlays,
         s.spectrum_curves,
         s.x_axis,
         s.y_axis,
@@ -404,11 +451,12 @@ pub fn spectrum_ui(
     );
 }
 
-/// The angle view with its control row.
+/// The angle view with its control row; `overlays` are drawn over the active design.
 pub fn angle_ui(
     ui: &mut egui::Ui,
     s: &mut ViewSettings,
     sweeps: &SweepCache,
+    overlays: &[Overlay<'_>],
     plot: &mut PlotCache,
 ) {
     ui.horizontal_wrapped(|ui| {
@@ -434,10 +482,11 @@ pub fn angle_ui(
     if let Some(Err(e)) = sweeps.result() {
         ui.colored_label(ui.visuals().error_fg_color, format!("cannot compute: {e}"));
     }
+    overlay_errors_ui(ui, overlays);
     refresh(
         plot,
         sweeps,
-        sweeps.generation(),
+        overlays,
         s.angle_curves,
         XAxis::Wavelength,
         YAxis::Percent,
