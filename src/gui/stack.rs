@@ -359,7 +359,13 @@ fn layer_table_ui(
     state: &mut StackUi,
     out: &mut Vec<Command>,
 ) {
-    ui.label(RichText::new(format!("{} layers, outermost first", design.layers.len())).weak());
+    ui.label(
+        RichText::new(format!(
+            "{} layers, outermost first; drag a number to move a layer",
+            design.layers.len()
+        ))
+        .weak(),
+    );
     egui::ScrollArea::vertical()
         .id_salt("layer-table")
         .max_height(STRIP_HEIGHT - 20.0)
@@ -393,9 +399,26 @@ fn layer_row_ui(
     let layer = &design.layers[i];
     let no = i + 1;
     let sel = state.selected.contains(&i);
-    let r = ui
-        .selectable_label(sel, format!("{no}"))
-        .accessible_name(format!("Select layer {no}"));
+    // The number cell selects the layer, and dragging it onto another row moves the layer there.
+    let drag = ui.dnd_drag_source(ui.make_persistent_id(("layer-drag", i)), i, |ui| {
+        ui.selectable_label(sel, format!("{no}"))
+            .accessible_name(format!("Select layer {no}"))
+    });
+    if let Some(from) = drag.response.dnd_release_payload::<usize>()
+        && *from != i
+    {
+        out.push(Command::MoveLayer { from: *from, to: i });
+    }
+    if drag
+        .response
+        .dnd_hover_payload::<usize>()
+        .is_some_and(|from| *from != i)
+    {
+        let rect = drag.response.rect;
+        let stroke = egui::Stroke::new(2.0, ui.visuals().selection.stroke.color);
+        ui.painter().hline(rect.x_range(), rect.top(), stroke);
+    }
+    let r = drag.inner;
     if r.clicked() {
         let m = ui.input(|inp| inp.modifiers);
         if m.command {
