@@ -400,25 +400,22 @@ fn layer_row_ui(
     let no = i + 1;
     let sel = state.selected.contains(&i);
     // The number cell selects the layer, and dragging it onto another row moves the layer there.
-    let drag = ui.dnd_drag_source(ui.make_persistent_id(("layer-drag", i)), i, |ui| {
-        ui.selectable_label(sel, format!("{no}"))
-            .accessible_name(format!("Select layer {no}"))
-    });
-    if let Some(from) = drag.response.dnd_release_payload::<usize>()
+    let r = ui
+        .selectable_label(sel, format!("{no}"))
+        .interact(egui::Sense::click_and_drag())
+        .accessible_name(format!("Select layer {no}"));
+    r.dnd_set_drag_payload(i);
+    if let Some(from) = r.dnd_release_payload::<usize>()
         && *from != i
     {
         out.push(Command::MoveLayer { from: *from, to: i });
     }
-    if drag
-        .response
-        .dnd_hover_payload::<usize>()
+    if r.dnd_hover_payload::<usize>()
         .is_some_and(|from| *from != i)
     {
-        let rect = drag.response.rect;
         let stroke = egui::Stroke::new(2.0, ui.visuals().selection.stroke.color);
-        ui.painter().hline(rect.x_range(), rect.top(), stroke);
+        ui.painter().hline(r.rect.x_range(), r.rect.top(), stroke);
     }
-    let r = drag.inner;
     if r.clicked() {
         let m = ui.input(|inp| inp.modifiers);
         if m.command {
