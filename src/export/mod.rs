@@ -30,6 +30,30 @@ pub fn needs_caution(design_name: &str) -> bool {
             .any(|w| w == "od")
 }
 
+/// R at or above this anywhere marks a spectrum as a (laser-grade) mirror for [`shows_blocking`].
+pub const MIRROR_R_FROM: f64 = 0.99;
+/// T at or below this anywhere (optical density 2 or more) marks a spectrum as blocking.
+pub const BLOCKING_T_UPTO: f64 = 0.01;
+
+/// Whether a spectrum shows mirror-grade reflection or blocking (R ≥ [`MIRROR_R_FROM`] or
+/// T ≤ [`BLOCKING_T_UPTO`] at some wavelength), so its exports should carry
+/// [`SAFETY_CAUTION`].
+///
+/// ```
+/// let mut s = stackwise::analysis::Spectrum::default();
+/// s.curves.r = vec![0.2, 0.995];
+/// s.curves.t = vec![0.8, 0.005];
+/// assert!(stackwise::export::shows_blocking(&s));
+/// s.curves.r = vec![0.2, 0.5];
+/// s.curves.t = vec![0.8, 0.5];
+/// assert!(!stackwise::export::shows_blocking(&s));
+/// ```
+#[must_use]
+pub fn shows_blocking(s: &crate::analysis::Spectrum) -> bool {
+    s.curves.r.iter().any(|&r| r >= MIRROR_R_FROM)
+        || s.curves.t.iter().any(|&t| t <= BLOCKING_T_UPTO)
+}
+
 /// Why an image or report could not be made.
 #[derive(Clone, Debug, PartialEq, thiserror::Error)]
 #[non_exhaustive]
