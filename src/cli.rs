@@ -6,11 +6,13 @@ use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 use anyhow::{Context as _, Result, bail};
-use clap::{Parser, Subcommand, ValueEnum};
+use clap::{Args, Parser, Subcommand, ValueEnum};
 
+use crate::analysis::measured::{ValueScale, parse_measured_csv, rms_difference};
 use crate::analysis::{self, Warning};
 use crate::design::{Design, Pol, Quantity, file};
 use crate::export;
+use crate::material::import::WavelengthUnit;
 use crate::material::{Catalog, builtin};
 use crate::optics::Side;
 
@@ -119,6 +121,75 @@ pub enum ReportFormat {
     Html,
 }
 
+/// Settings of the plot command.
+#[derive(Debug, Args)]
+pub struct PlotArgs {
+    /// The design file (.ron).
+    pub design: PathBuf,
+    /// The image to write: FILE.png or FILE.svg.
+    #[arg(long)]
+    pub out: PathBuf,
+    /// Further designs to draw on the same plot (repeat the option for each).
+    #[arg(long)]
+    pub compare: Vec<PathBuf>,
+    /// First wavelength, nm [default: 0.7 × the reference wavelength].
+    #[arg(long)]
+    pub from: Option<f64>,
+    /// Last wavelength, nm [default: 1.5 × the reference wavelength].
+    #[arg(long)]
+    pub to: Option<f64>,
+    /// Wavelength step, nm [default: 400 steps over the range].
+    #[arg(long)]
+    pub step: Option<f64>,
+    /// Angle of incidence in degrees, in the medium the light comes from.
+    #[arg(long, default_value_t = 0.0)]
+    pub aoi: f64,
+    /// What to plot.
+    #[arg(long, value_enum, default_value_t = QuantityArg::R)]
+    pub quantity: QuantityArg,
+    /// Polarisation.
+    #[arg(long, value_enum, default_value_t = PolArg::Mean)]
+    pub pol: PolArg,
+    /// Image width in pixels.
+    #[arg(long, default_value_t = 1200)]
+    pub width: u32,
+    /// Image height in pixels.
+    #[arg(long, default_value_t = 800)]
+    pub height: u32,
+    /// Print the safety caution on the image even when the design's name does not call
+    /// for it.
+    #[arg(long)]
+    pub caution: bool,
+}
+
+/// Settings of the report command.
+#[derive(Debug, Args)]
+pub struct ReportArgs {
+    /// The design file (.ron).
+    pub design: PathBuf,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = ReportFormat::Md)]
+    pub format: ReportFormat,
+    /// Write the report here instead of standard output.
+    #[arg(long)]
+    pub out: Option<PathBuf>,
+}
+
+/// Settings of the measured command.
+#[derive(Debug, Args)]
+pub struct MeasuredArgs {
+    /// The measured curve (.csv): wavelength (nm or µm), value (percent or fraction).
+    pub measured: PathBuf,
+    /// The design file (.ron).
+    pub design: PathBuf,
+    /// Which quantity the file holds (mean of s and p).
+    #[arg(long, value_enum, default_value_t = MeasuredQuantityArg::T)]
+    pub quantity: MeasuredQuantityArg,
+    /// Angle of incidence of the measurement, degrees.
+    #[arg(long, default_value_t = 0.0)]
+    pub aoi: f64,
+}
+
 /// Headless commands.
 #[derive(Debug, Subcommand)]
 pub enum Command {
@@ -188,68 +259,11 @@ pub enum Command {
     /// The built-in materials as CSV: name,model,min_nm,max_nm,source.
     Materials,
     /// A plot image of R, T or A over wavelength: PNG or SVG, chosen by the --out extension.
-    Plot {
-        /// The design file (.ron).
-        design: PathBuf,
-        /// The image to write: FILE.png or FILE.svg.
-        #[arg(long)]
-        out: PathBuf,
-        /// Further designs to draw on the same plot (repeat the option for each).
-        #[arg(long)]
-        compare: Vec<PathBuf>,
-        /// First wavelength, nm [default: 0.7 × the reference wavelength].
-        #[arg(long)]
-        from: Option<f64>,
-        /// Last wavelength, nm [default: 1.5 × the reference wavelength].
-        #[arg(long)]
-        to: Option<f64>,
-        /// Wavelength step, nm [default: 400 steps over the range].
-        #[arg(long)]
-        step: Option<f64>,
-        /// Angle of incidence in degrees, in the medium the light comes from.
-        #[arg(long, default_value_t = 0.0)]
-        aoi: f64,
-        /// What to plot.
-        #[arg(long, value_enum, default_value_t = QuantityArg::R)]
-        quantity: QuantityArg,
-        /// Polarisation.
-        #[arg(long, value_enum, default_value_t = PolArg::Mean)]
-        pol: PolArg,
-        /// Image width in pixels.
-        #[arg(long, default_value_t = 1200)]
-        width: u32,
-        /// Image height in pixels.
-        #[arg(long, default_value_t = 800)]
-        height: u32,
-        /// Print the safety caution on the image even when the design's name does not call
-        /// for it.
-        #[arg(long)]
-        caution: bool,
-    },
+    Plot(PlotArgs),
     /// The layer report: per layer nm, QWOT, optical and cumulative thickness; totals.
-    Report {
-        /// The design file (.ron).
-        design: PathBuf,
-        /// Output format.
-        #[arg(long, value_enum, default_value_t = ReportFormat::Md)]
-        format: ReportFormat,
-        /// Write the report here instead of standard output.
-        #[arg(long)]
-        out: Option<PathBuf>,
-    },
+    Report(ReportArgs),
     /// Compares a measured R or T curve (CSV: wavelength, value) with a design's computed one.
-    Measured {
-        /// The measured curve (.csv): wavelength (nm or µm), value (percent or fraction).
-        measured: PathBuf,
-        /// The design file (.ron).
-        design: PathBuf,
-        /// Which quantity the file holds (mean of s and p).
-        #[arg(long, value_enum, default_value_t = MeasuredQuantityArg::T)]
-        quantity: MeasuredQuantityArg,
-        /// Angle of incidence of the measurement, degrees.
-        #[arg(long, default_value_t = 0.0)]
-        aoi: f64,
-    },
+    Measured(MeasuredArgs),
     /// The layer table of a design: material, nm, QWOT and optical thickness.
     Info {
         /// The design file (.ron).
@@ -412,58 +426,9 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
                 )?;
             }
         }
-        Command::Plot {
-            design,
-            out,
-            compare,
-            from,
-            to,
-            step,
-            aoi,
-            quantity,
-            pol,
-            width,
-            height,
-            caution,
-        } => {
-            plot(
-                &PlotArgs {
-                    design: &design,
-                    out: &out,
-                    compare: &compare,
-                    range: (from, to, step),
-                    aoi,
-                    quantity: quantity.into(),
-                    pol: pol.into(),
-                    size: (width, height),
-                    caution,
-                },
-                stderr,
-            )?;
-        }
-        Command::Report {
-            design,
-            format,
-            out,
-        } => {
-            let d = load_design(&design)?;
-            let r = export::report::LayerReport::new(&d)
-                .with_context(|| format!("layer report of {}", design.display()))?;
-            let text = match format {
-                ReportFormat::Csv => r.to_csv(),
-                ReportFormat::Md => r.to_markdown(),
-                ReportFormat::Html => r.to_html(),
-            };
-            let mut w = output(out.as_deref(), stdout)?;
-            w.write_all(text.as_bytes())?;
-            w.flush()?;
-        }
-        Command::Measured {
-            measured,
-            design,
-            quantity,
-            aoi,
-        } => measured_cmd(&measured, &design, quantity.into(), aoi, stdout, stderr)?,
+        Command::Plot(args) => plot(&args, stderr)?,
+        Command::Report(args) => report_cmd(&args, stdout)?,
+        Command::Measured(args) => measured_cmd(&args, stdout, stderr)?,
         Command::Info { design } => {
             let d = load_design(&design)?;
             info(&d, stdout)?;
@@ -518,19 +483,6 @@ fn info(d: &Design, out: &mut dyn Write) -> Result<()> {
     Ok(())
 }
 
-/// The plot command's settings.
-struct PlotArgs<'a> {
-    design: &'a Path,
-    out: &'a Path,
-    compare: &'a [PathBuf],
-    range: (Option<f64>, Option<f64>, Option<f64>),
-    aoi: f64,
-    quantity: Quantity,
-    pol: Pol,
-    size: (u32, u32),
-    caution: bool,
-}
-
 /// The image format named by a file's extension.
 #[derive(Clone, Copy, PartialEq, Eq)]
 enum ImageKind {
@@ -553,10 +505,10 @@ fn image_kind(path: &Path) -> Result<ImageKind> {
     }
 }
 
-fn plot(a: &PlotArgs<'_>, stderr: &mut dyn Write) -> Result<()> {
-    let kind = image_kind(a.out)?;
-    let first = load_design(a.design)?;
-    let (from, to, step) = a.range;
+fn plot(a: &PlotArgs, stderr: &mut dyn Write) -> Result<()> {
+    let kind = image_kind(&a.out)?;
+    let first = load_design(&a.design)?;
+    let (from, to, step) = (a.from, a.to, a.step);
     let (from, to, step) = span(
         from,
         to,
@@ -567,7 +519,7 @@ fn plot(a: &PlotArgs<'_>, stderr: &mut dyn Write) -> Result<()> {
     let wl = analysis::wavelengths_nm(from, to, step)
         .context("wavelength range (--from, --to, --step)")?;
     let mut designs = vec![first];
-    for p in a.compare {
+    for p in &a.compare {
         designs.push(load_design(p)?);
     }
     let mut spectra = Vec::with_capacity(designs.len());
@@ -582,33 +534,39 @@ fn plot(a: &PlotArgs<'_>, stderr: &mut dyn Write) -> Result<()> {
         .map(|d| d.name.as_str())
         .zip(&spectra)
         .collect();
-    let mut spec = export::plot::spectrum_plot(&named, a.quantity, a.pol);
+    let mut spec = export::plot::spectrum_plot(&named, a.quantity.into(), a.pol.into());
     if a.caution
         || designs.iter().any(|d| export::needs_caution(&d.name))
         || spectra.iter().any(export::shows_blocking)
     {
         spec.caution = Some(export::SAFETY_CAUTION.to_owned());
     }
-    let (w, h) = a.size;
+    let (w, h) = (a.width, a.height);
     let bytes = match kind {
         ImageKind::Png => export::plot::render_png(&spec, w, h)?,
         ImageKind::Svg => export::plot::render_svg(&spec, w, h)?.into_bytes(),
     };
-    std::fs::write(a.out, bytes).with_context(|| format!("cannot write {}", a.out.display()))?;
+    std::fs::write(&a.out, bytes).with_context(|| format!("cannot write {}", a.out.display()))?;
     Ok(())
 }
 
-fn measured_cmd(
-    measured: &Path,
-    design: &Path,
-    quantity: Quantity,
-    aoi: f64,
-    stdout: &mut dyn Write,
-    stderr: &mut dyn Write,
-) -> Result<()> {
-    use crate::material::import::WavelengthUnit;
-    use analysis::measured::{ValueScale, parse_measured_csv, rms_difference};
+fn report_cmd(a: &ReportArgs, stdout: &mut dyn Write) -> Result<()> {
+    let d = load_design(&a.design)?;
+    let r = export::report::LayerReport::new(&d)
+        .with_context(|| format!("layer report of {}", a.design.display()))?;
+    let text = match a.format {
+        ReportFormat::Csv => r.to_csv(),
+        ReportFormat::Md => r.to_markdown(),
+        ReportFormat::Html => r.to_html(),
+    };
+    let mut w = output(a.out.as_deref(), stdout)?;
+    w.write_all(text.as_bytes())?;
+    w.flush()?;
+    Ok(())
+}
 
+fn measured_cmd(a: &MeasuredArgs, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Result<()> {
+    let (measured, design, quantity, aoi) = (&a.measured, &a.design, a.quantity.into(), a.aoi);
     let text = std::fs::read_to_string(measured)
         .with_context(|| format!("cannot read {}", measured.display()))?;
     let m = parse_measured_csv(&text, WavelengthUnit::Auto, ValueScale::Auto)

@@ -387,9 +387,12 @@ fn measured_files_in_every_accepted_shape() {
     close(&m.value, &[1.0, 2.0]);
 }
 
+/// (file text, is it the right error, a fragment the message must hold)
+type Case = (&'static str, fn(&MeasuredError) -> bool, &'static str);
+
 #[test]
 fn broken_measured_files_name_the_line() {
-    let cases: [(&str, fn(&MeasuredError) -> bool, &str); 7] = [
+    let cases: [Case; 7] = [
         (
             "header only\n",
             |e| matches!(e, MeasuredError::NoRows),
@@ -550,8 +553,10 @@ fn difference_on_equal_grids_is_plain_subtraction() {
     let d = difference(&a, &b);
     assert_eq!(d.wavelength_nm, a.wavelength_nm, "shared grid");
     for i in 0..d.r.len() {
-        assert_eq!(d.r[i], a.curves.r[i] - b.curves.r[i], "R at {i}");
-        assert_eq!(d.t[i], a.curves.t[i] - b.curves.t[i], "T at {i}");
+        // Exactly equal: the same subtraction, no interpolation on a shared grid.
+        let exact = |x: f64, y: f64| x.to_bits() == y.to_bits();
+        assert!(exact(d.r[i], a.curves.r[i] - b.curves.r[i]), "R at {i}");
+        assert!(exact(d.t[i], a.curves.t[i] - b.curves.t[i]), "T at {i}");
     }
     let narrow = computed(AR, 500.0, 600.0, 3.0, 0.0);
     let d = difference(&a, &narrow);

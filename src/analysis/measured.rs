@@ -189,18 +189,17 @@ fn scale_in_header(header: &str) -> Option<ValueScale> {
     }
 }
 
-/// Reads a measured curve (wavelength, value) from CSV-like text.
-///
-/// `unit` and `scale` fix the wavelength unit and value scale, or are `Auto` to read them from
-/// the header, else detect them: all wavelengths below [`GUESS_UM_BELOW`] → µm; any value
-/// above [`PERCENT_ABOVE`] → percent. Rows in falling wavelength order are reversed. The result
-/// is in nm and fractions.
-pub fn parse_measured_csv(
-    text: &str,
-    unit: WavelengthUnit,
-    scale: ValueScale,
-) -> Result<MeasuredCurve, MeasuredError> {
-    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+/// What one pass over the lines found.
+struct Scan<'a> {
+    rows: Vec<Row<'a>>,
+    sep: Sep,
+    header: String,
+    header_lines: usize,
+    used_comma: bool,
+}
+
+/// One pass over the lines: header, separator, rows.
+fn scan(text: &str) -> Result<Scan<'_>, MeasuredError> {
     let mut header = String::new();
     let mut header_lines = 0_usize;
     let mut sep: Option<Sep> = None;
@@ -255,11 +254,41 @@ pub fn parse_measured_csv(
             wl_text: cells[0],
         });
     }
-    let (Some(sep), Some(first)) = (sep, rows.first()) else {
+    let Some(sep) = sep else {
         return Err(MeasuredError::NoRows);
     };
-    if rows.len() < 2 {
-        return Err(MeasuredError::TooFewRows { line: first.line });
+    Ok(Scan {
+        rows,
+        sep,
+        header,
+        header_lines,
+        used_comma,
+    })
+}
+
+/// Reads a measured curve (wavelength, value) from CSV-like text.
+///
+/// `unit` and `scale` fix the wavelength unit and value scale, or are `Auto` to read them from
+/// the header, else detect them: all wavelengths below [`GUESS_UM_BELOW`] → µm; any value
+/// above [`PERCENT_ABOVE`] → percent. Rows in falling wavelength order are reversed. The result
+/// is in nm and fractions.
+pub fn parse_measured_csv(
+    text: &str,
+    unit: WavelengthUnit,
+    scale: ValueScale,
+) -> Result<MeasuredCurve, MeasuredError> {
+    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    let Scan {
+        rows,
+        sep,
+        header,
+        header_lines,
+        used_comma,
+    } = scan(text)?;
+    match rows.as_slice() {
+        [] => return Err(MeasuredError::NoRows),
+        [only] => return Err(MeasuredError::TooFewRows { line: only.line }),
+        _ => {}
     }
     let descending = check_order(&rows)?;
 

@@ -28,6 +28,7 @@
 //! # Ok::<(), stackwise::export::ExportError>(())
 //! ```
 
+use std::fmt::Write as _;
 use std::io::Cursor;
 use std::ops::Range;
 use std::sync::OnceLock;
@@ -273,7 +274,9 @@ fn draw<DB: DrawingBackend>(
         let style = TextStyle::from((FONT, size)).color(&CAUTION_TEXT);
         for (i, l) in lines.iter().enumerate() {
             let y = (i as f64 * line_h) as i32;
-            bottom.draw_text(l, &style, (pad as i32, y)).map_err(fail)?;
+            bottom
+                .draw_text(l, &style, ((base * 0.6) as i32, y))
+                .map_err(fail)?;
         }
         top
     } else {
@@ -438,7 +441,8 @@ pub fn spectrum_plot(designs: &[(&str, &Spectrum)], quantity: Quantity, pol: Pol
         .collect();
     let mut title = format!("{}, {}", quantity_name(quantity), pol_name(pol));
     if same_aoi {
-        title.push_str(&format!(", {first_aoi}° incidence"));
+        // Writing to a String cannot fail.
+        write!(title, ", {first_aoi}° incidence").ok();
     }
     if let [(name, _)] = designs {
         title = format!("{name}: {title}");
