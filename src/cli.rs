@@ -610,7 +610,7 @@ fn measured_cmd(a: &MeasuredArgs, stdout: &mut dyn Write, stderr: &mut dyn Write
     };
     writeln!(
         stdout,
-        "{q} (mean of s and p) at {aoi}°: RMS difference {:.4} % over {n} points, {lo}–{hi} nm",
+        "{q} (mean of s and p) at {aoi}°: RMS difference {:.4} percentage points over {n} points, {lo}–{hi} nm",
         100.0 * rms
     )?;
     writeln!(stdout, "rms_fraction,{rms}")?;
