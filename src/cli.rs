@@ -6,11 +6,13 @@ use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 use anyhow::{Context as _, Result, bail};
-use clap::{Parser, Subcommand, ValueEnum};
+use clap::{Args, Parser, Subcommand, ValueEnum};
 
+use crate::analysis::measured::{ValueScale, parse_measured_csv, rms_difference};
 use crate::analysis::{self, Warning};
-use crate::design::{Design, file};
+use crate::design::{Design, Pol, Quantity, file};
 use crate::export;
+use crate::material::import::WavelengthUnit;
 use crate::material::{Catalog, builtin};
 use crate::optics::Side;
 
@@ -74,6 +76,140 @@ impl Range {
     }
 }
 
+/// A plotted quantity.
+#[derive(Clone, Copy, Debug, ValueEnum)]
+pub enum QuantityArg {
+    /// Reflectance.
+    R,
+    /// Transmittance.
+    T,
+    /// Absorptance.
+    A,
+}
+
+impl From<QuantityArg> for Quantity {
+    fn from(q: QuantityArg) -> Self {
+        match q {
+            QuantityArg::R => Quantity::R,
+            QuantityArg::T => Quantity::T,
+            QuantityArg::A => Quantity::A,
+        }
+    }
+}
+
+/// A measured quantity.
+#[derive(Clone, Copy, Debug, ValueEnum)]
+pub enum MeasuredQuantityArg {
+    /// Reflectance.
+    R,
+    /// Transmittance.
+    T,
+}
+
+impl From<MeasuredQuantityArg> for Quantity {
+    fn from(q: MeasuredQuantityArg) -> Self {
+        match q {
+            MeasuredQuantityArg::R => Quantity::R,
+            MeasuredQuantityArg::T => Quantity::T,
+        }
+    }
+}
+
+/// A polarisation.
+#[derive(Clone, Copy, Debug, ValueEnum)]
+pub enum PolArg {
+    /// s (TE).
+    S,
+    /// p (TM).
+    P,
+    /// Mean of s and p (unpolarised).
+    Mean,
+}
+
+impl From<PolArg> for Pol {
+    fn from(p: PolArg) -> Self {
+        match p {
+            PolArg::S => Pol::S,
+            PolArg::P => Pol::P,
+            PolArg::Mean => Pol::Mean,
+        }
+    }
+}
+
+/// Layer report formats.
+#[derive(Clone, Copy, Debug, ValueEnum)]
+pub enum ReportFormat {
+    /// Comma-separated values, full precision.
+    Csv,
+    /// Markdown tables.
+    Md,
+    /// A self-contained HTML page.
+    Html,
+}
+
+/// Settings of the plot command.
+#[derive(Debug, Args)]
+pub struct PlotArgs {
+    /// The design file (.ron).
+    pub design: PathBuf,
+    /// The image to write: FILE.png or FILE.svg.
+    #[arg(long)]
+    pub out: PathBuf,
+    /// Further designs to draw on the same plot (repeat the option for each).
+    #[arg(long)]
+    pub compare: Vec<PathBuf>,
+    /// Wavelengths [default: 0.7 to 1.5 × the reference wavelength, 400 steps].
+    #[command(flatten)]
+    pub range: Range,
+    /// Angle of incidence in degrees, in the medium the light comes from.
+    #[arg(long, default_value_t = 0.0)]
+    pub aoi: f64,
+    /// What to plot.
+    #[arg(long, value_enum, default_value_t = QuantityArg::R)]
+    pub quantity: QuantityArg,
+    /// Polarisation.
+    #[arg(long, value_enum, default_value_t = PolArg::Mean)]
+    pub pol: PolArg,
+    /// Image width in pixels.
+    #[arg(long, default_value_t = 1200)]
+    pub width: u32,
+    /// Image height in pixels.
+    #[arg(long, default_value_t = 800)]
+    pub height: u32,
+    /// Print the safety caution on the image even when the design's name does not call
+    /// for it.
+    #[arg(long)]
+    pub caution: bool,
+}
+
+/// Settings of the report command.
+#[derive(Debug, Args)]
+pub struct ReportArgs {
+    /// The design file (.ron).
+    pub design: PathBuf,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = ReportFormat::Md)]
+    pub format: ReportFormat,
+    /// Write the report here instead of standard output.
+    #[arg(long)]
+    pub out: Option<PathBuf>,
+}
+
+/// Settings of the measured command.
+#[derive(Debug, Args)]
+pub struct MeasuredArgs {
+    /// The measured curve (.csv): wavelength (nm or µm), value (percent or fraction).
+    pub measured: PathBuf,
+    /// The design file (.ron).
+    pub design: PathBuf,
+    /// Which quantity the file holds (mean of s and p).
+    #[arg(long, value_enum, default_value_t = MeasuredQuantityArg::T)]
+    pub quantity: MeasuredQuantityArg,
+    /// Angle of incidence of the measurement, degrees.
+    #[arg(long, default_value_t = 0.0)]
+    pub aoi: f64,
+}
+
 /// Headless commands.
 #[derive(Debug, Subcommand)]
 pub enum Command {
@@ -130,6 +266,12 @@ pub enum Command {
     },
     /// The built-in materials as CSV: name,model,min_nm,max_nm,source.
     Materials,
+    /// A plot image of R, T or A over wavelength: PNG or SVG, chosen by the --out extension.
+    Plot(PlotArgs),
+    /// The layer report: per layer nm, QWOT, optical and cumulative thickness; totals.
+    Report(ReportArgs),
+    /// Compares a measured R or T curve (CSV: wavelength, value) with a design's computed one.
+    Measured(MeasuredArgs),
     /// The layer table of a design: material, nm, QWOT and optical thickness.
     Info {
         /// The design file (.ron).
@@ -270,6 +412,9 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
                 )?;
             }
         }
+        Command::Plot(args) => plot(&args, stderr)?,
+        Command::Report(args) => report_cmd(&args, stdout)?,
+        Command::Measured(args) => measured_cmd(&args, stdout, stderr)?,
         Command::Info { design } => {
             let d = load_design(&design)?;
             info(&d, stdout)?;
@@ -321,5 +466,132 @@ fn info(d: &Design, out: &mut dyn Write) -> Result<()> {
         d.layers.len(),
         d.total_nm()
     )?;
+    Ok(())
+}
+
+/// The image format named by a file's extension.
+#[derive(Clone, Copy, PartialEq, Eq)]
+enum ImageKind {
+    Png,
+    Svg,
+}
+
+fn image_kind(path: &Path) -> Result<ImageKind> {
+    let ext = path
+        .extension()
+        .and_then(|e| e.to_str())
+        .map(str::to_ascii_lowercase);
+    match ext.as_deref() {
+        Some("png") => Ok(ImageKind::Png),
+        Some("svg") => Ok(ImageKind::Svg),
+        _ => bail!(
+            "cannot tell the image format of {}: name the file .png or .svg",
+            path.display()
+        ),
+    }
+}
+
+fn plot(a: &PlotArgs, stderr: &mut dyn Write) -> Result<()> {
+    let kind = image_kind(&a.out)?;
+    let first = load_design(&a.design)?;
+    let wl = a
+        .range
+        .wavelengths_nm(0.7 * first.reference_nm, 1.5 * first.reference_nm)?;
+    let mut designs = vec![first];
+    for p in &a.compare {
+        designs.push(load_design(p)?);
+    }
+    let mut spectra = Vec::with_capacity(designs.len());
+    for d in &designs {
+        let s = analysis::spectrum(&d.resolve()?, &wl, a.aoi, Side::Front)
+            .with_context(|| format!("design {:?}", d.name))?;
+        report(&s.warnings, stderr)?;
+        spectra.push(s);
+    }
+    let named: Vec<(&str, &analysis::Spectrum)> = designs
+        .iter()
+        .map(|d| d.name.as_str())
+        .zip(&spectra)
+        .collect();
+    let mut spec = export::plot::spectrum_plot(&named, a.quantity.into(), a.pol.into());
+    if a.caution
+        || designs.iter().any(|d| export::needs_caution(&d.name))
+        || spectra.iter().any(export::shows_blocking)
+    {
+        spec.caution = Some(export::SAFETY_CAUTION.to_owned());
+    }
+    let (w, h) = (a.width, a.height);
+    let bytes = match kind {
+        ImageKind::Png => export::plot::render_png(&spec, w, h)?,
+        ImageKind::Svg => export::plot::render_svg(&spec, w, h)?.into_bytes(),
+    };
+    std::fs::write(&a.out, bytes).with_context(|| format!("cannot write {}", a.out.display()))?;
+    Ok(())
+}
+
+fn report_cmd(a: &ReportArgs, stdout: &mut dyn Write) -> Result<()> {
+    let d = load_design(&a.design)?;
+    let r = export::report::LayerReport::new(&d)
+        .with_context(|| format!("layer report of {}", a.design.display()))?;
+    let text = match a.format {
+        ReportFormat::Csv => r.to_csv(),
+        ReportFormat::Md => r.to_markdown(),
+        ReportFormat::Html => r.to_html(),
+    };
+    let mut w = output(a.out.as_deref(), stdout)?;
+    w.write_all(text.as_bytes())?;
+    w.flush()?;
+    Ok(())
+}
+
+fn measured_cmd(a: &MeasuredArgs, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Result<()> {
+    let (measured, design, quantity, aoi) = (&a.measured, &a.design, a.quantity.into(), a.aoi);
+    let text = std::fs::read_to_string(measured)
+        .with_context(|| format!("cannot read {}", measured.display()))?;
+    let m = parse_measured_csv(&text, WavelengthUnit::Auto, ValueScale::Auto)
+        .with_context(|| format!("in {}", measured.display()))?;
+    let d = load_design(design)?;
+    let (Some(&lo), Some(&hi)) = (m.wavelength_nm.first(), m.wavelength_nm.last()) else {
+        bail!("{} holds no rows", measured.display());
+    };
+    // Compute on a grid at least as fine as the measurement, over its span.
+    let finest = m
+        .wavelength_nm
+        .windows(2)
+        .map(|w| w[1] - w[0])
+        .fold(f64::INFINITY, f64::min);
+    let step = finest.min((hi - lo) / 400.0).max((hi - lo) / 100_000.0);
+    let mut wl =
+        analysis::wavelengths_nm(lo, hi, step).context("the measured file's wavelength span")?;
+    if wl.last().is_some_and(|&last| last < hi) {
+        wl.push(hi);
+    }
+    let s = analysis::spectrum(&d.resolve()?, &wl, aoi, Side::Front)?;
+    report(&s.warnings, stderr)?;
+    for note in &m.notes {
+        writeln!(stdout, "note: {note}")?;
+    }
+    writeln!(
+        stdout,
+        "wavelength unit: {}   value scale: {}",
+        m.unit_used, m.scale_used
+    )?;
+    let q = match quantity {
+        Quantity::R => "R",
+        Quantity::T => "T",
+        Quantity::A => "A",
+    };
+    let Some((rms, n)) = rms_difference(&m, &s, quantity) else {
+        bail!(
+            "the measured curve ({lo}–{hi} nm) and the computed one do not overlap; \
+             check the wavelength unit"
+        );
+    };
+    writeln!(
+        stdout,
+        "{q} (mean of s and p) at {aoi}°: RMS difference {:.4} percentage points over {n} points, {lo}–{hi} nm",
+        100.0 * rms
+    )?;
+    writeln!(stdout, "rms_fraction,{rms}")?;
     Ok(())
 }

@@ -390,3 +390,40 @@ fn warnings_from_the_engine_reach_the_status_line() {
     h.run();
     h.get_by_label_contains("SiO2: data cover 252");
 }
+
+#[test]
+fn dragging_a_layer_number_moves_the_layer() {
+    let mut h = demo();
+    let before: Vec<String> = h
+        .state()
+        .doc
+        .design
+        .layers
+        .iter()
+        .map(|l| l.material.clone())
+        .collect();
+    let from = h.get_by_label("Select layer 1").rect().center();
+    let to = h.get_by_label("Select layer 3").rect().center();
+    h.drag_at(from);
+    h.run();
+    // Move in steps so egui sees a drag rather than a click.
+    for k in 1..=5 {
+        h.hover_at(from + (to - from) * (k as f32 / 5.0));
+        h.run();
+    }
+    h.drop_at(to);
+    h.run();
+    let after: Vec<String> = h
+        .state()
+        .doc
+        .design
+        .layers
+        .iter()
+        .map(|l| l.material.clone())
+        .collect();
+    let mut expected = before.clone();
+    let moved = expected.remove(0);
+    expected.insert(2, moved);
+    assert_ne!(after, before, "the drag must change the order");
+    assert_eq!(after, expected, "layer 1 now sits third from the substrate");
+}

@@ -1,9 +1,12 @@
-//! Analyses of a design: spectra over wavelength and scans over the angle of incidence.
+//! Analyses of a design: spectra over wavelength and scans over the angle of incidence,
+//! figures over a band and comparisons ([`compare`]), and measured curves ([`measured`]).
 //!
 //! The engine evaluates every material's index once per wavelength (not once per layer),
 //! then solves each wavelength or angle independently — in parallel for large sweeps — and
 //! hands back plain arrays ready to plot or write.
 
+pub mod compare;
+pub mod measured;
 mod sweep;
 
 pub use sweep::{

@@ -1,3 +1,106 @@
-//! Handing results over: CSV files of spectra, angle scans and optical constants.
+//! Handing results over: CSV files of spectra, angle scans and optical constants, plot images
+//! (PNG and SVG) and the layer report (CSV, Markdown, HTML).
 
 pub mod csv;
+pub mod plot;
+pub mod report;
+
+/// One line that goes on every exported image or report of blocking (optical density) data or
+/// of a laser mirror.
+pub const SAFETY_CAUTION: &str = crate::cautions::SHORT;
+
+/// Whether exports of a design should carry [`SAFETY_CAUTION`]: its name speaks of a laser or
+/// of optical density / blocking.
+///
+/// ```
+/// assert!(stackwise::export::needs_caution("Turning mirror for a Laser line"));
+/// assert!(stackwise::export::needs_caution("OD 4 notch"));
+/// assert!(!stackwise::export::needs_caution("Camera window AR"));
+/// ```
+#[must_use]
+pub fn needs_caution(design_name: &str) -> bool {
+    let lower = design_name.to_lowercase();
+    lower.contains("laser")
+        || lower.contains("blocking")
+        || lower.contains("optical density")
+        || lower
+            .split(|c: char| !c.is_alphanumeric())
+            .any(|w| w == "od")
+}
+
+/// R at or above this anywhere marks a spectrum as a (laser-grade) mirror for [`shows_blocking`].
+pub const MIRROR_R_FROM: f64 = 0.99;
+/// T at or below this anywhere (optical density 2 or more) marks a spectrum as blocking.
+pub const BLOCKING_T_UPTO: f64 = 0.01;
+
+/// Whether a spectrum shows mirror-grade reflection or blocking (R ≥ [`MIRROR_R_FROM`] or
+/// T ≤ [`BLOCKING_T_UPTO`] at some wavelength), so its exports should carry
+/// [`SAFETY_CAUTION`].
+///
+/// ```
+/// let mut s = stackwise::analysis::Spectrum::default();
+/// s.curves.r = vec![0.2, 0.995];
+/// s.curves.t = vec![0.8, 0.005];
+/// assert!(stackwise::export::shows_blocking(&s));
+/// s.curves.r = vec![0.2, 0.5];
+/// s.curves.t = vec![0.8, 0.5];
+/// assert!(!stackwise::export::shows_blocking(&s));
+/// ```
+#[must_use]
+pub fn shows_blocking(s: &crate::analysis::Spectrum) -> bool {
+    s.curves.r.iter().any(|&r| r >= MIRROR_R_FROM)
+        || s.curves.t.iter().any(|&t| t <= BLOCKING_T_UPTO)
+}
+
+/// Why an image or report could not be made.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+#[non_exhaustive]
+pub enum ExportError {
+    /// A requested image size outside the allowed range.
+    #[error("image {what} {value} px is outside {min}–{max} px; choose a size in that range")]
+    BadSize {
+        /// "width" or "height".
+        what: &'static str,
+        /// The size asked for.
+        value: u32,
+        /// Smallest allowed.
+        min: u32,
+        /// Largest allowed.
+        max: u32,
+    },
+    /// Width × height too large to hold in memory comfortably.
+    #[error("image {width} × {height} px has more than {max} pixels; make it smaller or use SVG")]
+    TooManyPixels {
+        /// Width asked for.
+        width: u32,
+        /// Height asked for.
+        height: u32,
+        /// Most pixels allowed.
+        max: u64,
+    },
+    /// No series has a single finite point.
+    #[error("nothing to plot: no series has a finite point; compute a spectrum first")]
+    NoData,
+    /// An axis range that is empty, inverted or not finite.
+    #[error("{axis} range {from} to {to} is empty, inverted or not finite; give from < to")]
+    BadRange {
+        /// "x" or "y".
+        axis: &'static str,
+        /// Start.
+        from: f64,
+        /// End.
+        to: f64,
+    },
+    /// The embedded font could not be loaded.
+    #[error("the embedded plot font could not be loaded; the program's build is damaged")]
+    Font,
+    /// The drawing library failed.
+    #[error("drawing the plot failed: {0}")]
+    Draw(String),
+    /// PNG encoding failed.
+    #[error("encoding the PNG failed: {0}")]
+    Png(String),
+    /// A layer's QWOT or optical thickness could not be computed.
+    #[error("layer report: {0}")]
+    Design(#[from] crate::design::DesignError),
+}

@@ -359,7 +359,13 @@ fn layer_table_ui(
     state: &mut StackUi,
     out: &mut Vec<Command>,
 ) {
-    ui.label(RichText::new(format!("{} layers, outermost first", design.layers.len())).weak());
+    ui.label(
+        RichText::new(format!(
+            "{} layers, outermost first; drag a number to move a layer",
+            design.layers.len()
+        ))
+        .weak(),
+    );
     egui::ScrollArea::vertical()
         .id_salt("layer-table")
         .max_height(STRIP_HEIGHT - 20.0)
@@ -393,9 +399,23 @@ fn layer_row_ui(
     let layer = &design.layers[i];
     let no = i + 1;
     let sel = state.selected.contains(&i);
+    // The number cell selects the layer, and dragging it onto another row moves the layer there.
     let r = ui
         .selectable_label(sel, format!("{no}"))
+        .interact(egui::Sense::click_and_drag())
         .accessible_name(format!("Select layer {no}"));
+    r.dnd_set_drag_payload(i);
+    if let Some(from) = r.dnd_release_payload::<usize>()
+        && *from != i
+    {
+        out.push(Command::MoveLayer { from: *from, to: i });
+    }
+    if r.dnd_hover_payload::<usize>()
+        .is_some_and(|from| *from != i)
+    {
+        let stroke = egui::Stroke::new(2.0, ui.visuals().selection.stroke.color);
+        ui.painter().hline(r.rect.x_range(), r.rect.top(), stroke);
+    }
     if r.clicked() {
         let m = ui.input(|inp| inp.modifiers);
         if m.command {

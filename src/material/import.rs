@@ -220,7 +220,7 @@ pub enum ImportError {
 
 /// The column separator found in the data.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
-enum Sep {
+pub(crate) enum Sep {
     Comma,
     Semicolon,
     Tab,
@@ -228,7 +228,7 @@ enum Sep {
 }
 
 impl Sep {
-    fn detect(line: &str) -> Self {
+    pub(crate) fn detect(line: &str) -> Self {
         if line.contains('\t') {
             Sep::Tab
         } else if line.contains(';') {
@@ -240,7 +240,7 @@ impl Sep {
         }
     }
 
-    fn split(self, line: &str) -> Vec<&str> {
+    pub(crate) fn split(self, line: &str) -> Vec<&str> {
         let mut cells: Vec<&str> = match self {
             Sep::Comma => line.split(',').map(str::trim).collect(),
             Sep::Semicolon => line.split(';').map(str::trim).collect(),
@@ -254,7 +254,7 @@ impl Sep {
         cells
     }
 
-    fn words(self) -> &'static str {
+    pub(crate) fn words(self) -> &'static str {
         match self {
             Sep::Comma => "commas",
             Sep::Semicolon => "semicolons",
@@ -274,19 +274,19 @@ struct RawRow<'a> {
 }
 
 /// Whether a line starts with a number, i.e. is a data row rather than a header.
-fn starts_with_number(line: &str) -> bool {
+pub(crate) fn starts_with_number(line: &str) -> bool {
     line.split([',', ';', '\t', ' '])
         .next()
         .is_some_and(|first| first.trim().parse::<f64>().is_ok())
 }
 
 /// The part of a line before any `#` comment, trimmed.
-fn strip_comment(line: &str) -> &str {
+pub(crate) fn strip_comment(line: &str) -> &str {
     line.split('#').next().unwrap_or_default().trim()
 }
 
 /// The unit a header or comment names, if it names exactly one.
-fn unit_in_header(text: &str) -> Option<WavelengthUnit> {
+pub(crate) fn unit_in_header(text: &str) -> Option<WavelengthUnit> {
     let lower = text.to_lowercase();
     let mut nm = false;
     let mut um = false;

@@ -90,16 +90,31 @@ pub(crate) fn coherent4<'a>(
         let kd = k0 * f64x4::splat(d_nm);
         let a = m.q.re * kd;
         let (sin_a, cos_a) = a.sin_cos();
+        if m.real {
+            // Lossless and propagating: cos δ and the admittances are real, i sin δ is
+            // imaginary, so each complex product is two real ones.
+            let rotate = |b: Cx4, c: Cx4, eta: f64x4, inv_eta: f64x4| {
+                let (u, v) = (sin_a * inv_eta, sin_a * eta);
+                let b2 = Cx4 {
+                    re: cos_a * b.re + u * c.im,
+                    im: cos_a * b.im - u * c.re,
+                };
+                let c2 = Cx4 {
+                    re: cos_a * c.re + v * b.im,
+                    im: cos_a * c.im - v * b.re,
+                };
+                (b2, c2)
+            };
+            (bs, cs) = rotate(bs, cs, m.eta_s.re, m.inv_eta_s.re);
+            (bp, cp) = rotate(bp, cp, m.eta_p.re, m.inv_eta_p.re);
+            continue;
+        }
         // cosh b · e^(−b) and sinh b · e^(−b), with b = Im δ >= 0 (q is on the decaying branch)
-        let (ch, sh) = if m.real {
-            (f64x4::ONE, f64x4::ZERO)
-        } else {
-            let b = m.q.im * kd;
-            let em = (-b).exp();
-            let em2 = em * em;
-            log_scale += b;
-            ((f64x4::ONE + em2) * half, (f64x4::ONE - em2) * half)
-        };
+        let b = m.q.im * kd;
+        let em = (-b).exp();
+        let em2 = em * em;
+        log_scale += b;
+        let (ch, sh) = ((f64x4::ONE + em2) * half, (f64x4::ONE - em2) * half);
         // cos(a + ib) = cos a cosh b − i sin a sinh b; i sin(a + ib) = −cos a sinh b + i sin a cosh b
         let cos_d = Cx4 {
             re: cos_a * ch,
