@@ -396,7 +396,7 @@ fn dragging_a_layer_number_moves_the_layer() {
     let mut h = demo();
     let before: Vec<String> = h
         .state()
-        .doc
+        .doc()
         .design
         .layers
         .iter()
@@ -415,7 +415,7 @@ fn dragging_a_layer_number_moves_the_layer() {
     h.run();
     let after: Vec<String> = h
         .state()
-        .doc
+        .doc()
         .design
         .layers
         .iter()

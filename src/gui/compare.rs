@@ -1,148 +1,27 @@
-//! The compare view: two or more open designs on shared axes of R or T, the difference of two
-//! of them in percentage points, and a table of figures over a band at one angle.
+//! The compare view: two or more open designs on shared axes of R or T (mean of s and p), the
+//! difference of two of them in percentage points, and a table of figures over a band at one
+//! angle.
 //!
-//! The curves are the designs' cached sweeps ([`super::compute`]); nothing here computes
-//! optics. [`band_figures`] and [`difference_pp`] are plain arithmetic over the engine's
-//! arrays. `band_figures` stands in for the shared `analysis::compare::band_figures` until that
-//! lands on the main branch; it follows the same definitions (mean of s and p, the first
-//! wavelength of a repeated extreme) so the two can be folded together.
+//! The curves are the designs' cached sweeps ([`super::compute`]); the figures and the
+//! difference come from [`crate::analysis::compare`], the same functions the command line
+//! uses. Nothing here computes optics.
 
 use egui::{Color32, DragValue, RichText};
 use egui_plot::{Legend, Line, Plot, PlotPoint, PlotPoints};
 
-use crate::analysis::Curves;
+use crate::analysis::Spectrum;
+use crate::analysis::compare::{Figures, band_figures, difference};
 
 use super::compute::{Sweep, SweepCache, SweepResult};
 use super::designs::{DesignId, WindowCommand};
 
-/// Mean, minimum and maximum of one curve over a band, and where the extremes are.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct Stats {
-    /// Arithmetic mean over the band's points (fraction).
-    pub mean: f64,
-    /// Smallest value (fraction).
-    pub min: f64,
-    /// Wavelength of the smallest value (nm; the first if it repeats).
-    pub min_at_nm: f64,
-    /// Largest value (fraction).
-    pub max: f64,
-    /// Wavelength of the largest value (nm; the first if it repeats).
-    pub max_at_nm: f64,
-}
-
-/// Figures of one spectrum over a band, for the mean of s and p.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct Figures {
-    /// Computed points inside the band.
-    pub points: usize,
-    /// Reflectance.
-    pub r: Stats,
-    /// Transmittance.
-    pub t: Stats,
-}
-
-fn stats(wl: &[f64], ys: &[f64], inside: &[usize]) -> Stats {
-    let mut s = Stats {
-        mean: 0.0,
-        min: f64::INFINITY,
-        min_at_nm: f64::NAN,
-        max: f64::NEG_INFINITY,
-        max_at_nm: f64::NAN,
-    };
-    for &i in inside {
-        let y = ys[i];
-        s.mean += y;
-        if y < s.min {
-            s.min = y;
-            s.min_at_nm = wl[i];
-        }
-        if y > s.max {
-            s.max = y;
-            s.max_at_nm = wl[i];
-        }
+/// A cached sweep over wavelength as the engine's [`Spectrum`] (copies the arrays).
+fn spectrum_of(r: &SweepResult) -> Spectrum {
+    Spectrum {
+        wavelength_nm: r.x.clone(),
+        curves: r.curves.clone(),
+        ..Spectrum::default()
     }
-    s.mean /= inside.len() as f64;
-    s
-}
-
-/// Figures of the mean-polarisation R and T over the points of `wavelength_nm` that lie in
-/// `from_nm..=to_nm`. Refuses a band that is not a range or holds no computed point, saying
-/// which.
-///
-/// ```
-/// use stackwise::analysis::Curves;
-/// use stackwise::gui::compare::band_figures;
-/// let c = Curves { r: vec![0.1, 0.3, 0.2], t: vec![0.9, 0.7, 0.8], ..Curves::default() };
-/// let f = band_figures(&[400.0, 500.0, 600.0], &c, 450.0, 600.0).unwrap();
-/// assert_eq!(f.points, 2);
-/// assert_eq!((f.r.max, f.r.max_at_nm), (0.3, 500.0));
-/// assert_eq!((f.t.min, f.t.min_at_nm), (0.7, 500.0));
-/// ```
-pub fn band_figures(
-    wavelength_nm: &[f64],
-    curves: &Curves,
-    from_nm: f64,
-    to_nm: f64,
-) -> Result<Figures, String> {
-    if !(from_nm.is_finite() && to_nm.is_finite() && from_nm <= to_nm) {
-        return Err(format!(
-            "band {from_nm} to {to_nm} nm is not a range; give finite wavelengths with from ≤ to"
-        ));
-    }
-    let n = wavelength_nm.len().min(curves.r.len()).min(curves.t.len());
-    let inside: Vec<usize> = (0..n)
-        .filter(|&i| (from_nm..=to_nm).contains(&wavelength_nm[i]))
-        .collect();
-    if inside.is_empty() {
-        return Err(format!(
-            "no computed wavelength lies in {from_nm}–{to_nm} nm; widen the band"
-        ));
-    }
-    Ok(Figures {
-        points: inside.len(),
-        r: stats(wavelength_nm, &curves.r, &inside),
-        t: stats(wavelength_nm, &curves.t, &inside),
-    })
-}
-
-/// `a − b` in percentage points at each x, for two curves (fractions) on the same grid.
-/// Refuses grids that differ, naming the first point where they do.
-///
-/// ```
-/// use stackwise::gui::compare::difference_pp;
-/// let d = difference_pp(&[1.0, 2.0], &[0.5, 0.25], &[1.0, 2.0], &[0.25, 0.5]).unwrap();
-/// assert_eq!(d, vec![(1.0, 25.0), (2.0, -25.0)]);
-/// ```
-#[expect(
-    clippy::float_cmp,
-    reason = "both sweeps come from the same grid; the same points are bit-identical"
-)]
-pub fn difference_pp(
-    x_a: &[f64],
-    a: &[f64],
-    x_b: &[f64],
-    b: &[f64],
-) -> Result<Vec<(f64, f64)>, String> {
-    if x_a.len() != x_b.len() || a.len() != x_a.len() || b.len() != x_b.len() {
-        return Err(format!(
-            "the two sweeps have different lengths ({} and {} points)",
-            x_a.len(),
-            x_b.len()
-        ));
-    }
-    if let Some(i) = x_a.iter().zip(x_b).position(|(p, q)| p != q) {
-        return Err(format!(
-            "the two sweeps differ at point {}: {} and {} nm",
-            i + 1,
-            x_a[i],
-            x_b[i]
-        ));
-    }
-    Ok(x_a
-        .iter()
-        .zip(a.iter().zip(b))
-        .map(|(&x, (&p, &q))| (x, 100.0 * (p - q)))
-        .collect())
 }
 
 /// A percentage (fraction in) with three decimals, e.g. `4.125 %`.
@@ -172,36 +51,17 @@ pub enum Quantity {
     T,
 }
 
-/// Which polarisation the compare plot shows.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum Pol {
-    /// s-polarisation.
-    S,
-    /// p-polarisation.
-    P,
-    /// Mean of s and p.
-    Mean,
-}
-
-fn curve(c: &Curves, q: Quantity, p: Pol) -> &[f64] {
-    match (q, p) {
-        (Quantity::R, Pol::S) => &c.r_s,
-        (Quantity::R, Pol::P) => &c.r_p,
-        (Quantity::R, Pol::Mean) => &c.r,
-        (Quantity::T, Pol::S) => &c.t_s,
-        (Quantity::T, Pol::P) => &c.t_p,
-        (Quantity::T, Pol::Mean) => &c.t,
+fn curve(r: &SweepResult, q: Quantity) -> &[f64] {
+    match q {
+        Quantity::R => &r.curves.r,
+        Quantity::T => &r.curves.t,
     }
 }
 
-fn curve_name(q: Quantity, p: Pol) -> &'static str {
-    match (q, p) {
-        (Quantity::R, Pol::S) => "R_s",
-        (Quantity::R, Pol::P) => "R_p",
-        (Quantity::R, Pol::Mean) => "R",
-        (Quantity::T, Pol::S) => "T_s",
-        (Quantity::T, Pol::P) => "T_p",
-        (Quantity::T, Pol::Mean) => "T",
+fn curve_name(q: Quantity) -> &'static str {
+    match q {
+        Quantity::R => "R",
+        Quantity::T => "T",
     }
 }
 
@@ -210,10 +70,8 @@ fn curve_name(q: Quantity, p: Pol) -> &'static str {
 pub struct CompareSettings {
     /// The designs being compared, in the order picked.
     pub picked: Vec<DesignId>,
-    /// Quantity on the shared axes.
+    /// Quantity on the shared axes (mean of s and p).
     pub quantity: Quantity,
-    /// Polarisation on the shared axes.
-    pub pol: Pol,
     /// Design A of the difference (defaults to the first picked).
     pub a: Option<DesignId>,
     /// Design B of the difference (defaults to the second picked).
@@ -233,7 +91,6 @@ impl Default for CompareSettings {
         Self {
             picked: Vec::new(),
             quantity: Quantity::R,
-            pol: Pol::Mean,
             a: None,
             b: None,
             band_from_nm: 450.0,
@@ -284,10 +141,13 @@ pub struct Entry<'a> {
     pub band: &'a SweepCache,
 }
 
-/// The figures the table shows for one picked design, or why there are none.
+/// The figures the table shows for one picked design (from
+/// [`crate::analysis::compare::band_figures`] on its band sweep), or why there are none.
 pub fn figures_for(band: &SweepCache, s: &CompareSettings) -> Result<Figures, String> {
     match band.result() {
-        Some(Ok(r)) => band_figures(&r.x, &r.curves, s.band_from_nm, s.band_to_nm),
+        Some(Ok(r)) => {
+            band_figures(&spectrum_of(r), s.band_from_nm, s.band_to_nm).map_err(|e| e.to_string())
+        }
         Some(Err(e)) => Err(e.clone()),
         None => Err("not computed yet".to_owned()),
     }
@@ -305,14 +165,18 @@ pub struct CompareCache {
     key: Option<CacheKey>,
     curves: Vec<Series>,
     difference: Option<Result<Series, String>>,
+    table_key: Option<TableKey>,
+    table: Vec<Result<Figures, String>>,
 }
 
 type CacheKey = (
     Vec<(DesignId, u64, String)>,
     Quantity,
-    Pol,
     Option<(DesignId, DesignId)>,
 );
+
+/// Each picked design's band generation, and the band's ends as bits.
+type TableKey = (Vec<(DesignId, u64)>, u64, u64);
 
 fn ok_result(c: &SweepCache) -> Option<&SweepResult> {
     match c.result() {
@@ -328,7 +192,6 @@ fn refresh(cache: &mut CompareCache, s: &CompareSettings, picked: &[&Entry<'_>])
             .map(|e| (e.id, e.spectrum.generation(), e.name.to_owned()))
             .collect(),
         s.quantity,
-        s.pol,
         s.pair(),
     );
     if cache.key.as_ref() == Some(&key) {
@@ -338,9 +201,9 @@ fn refresh(cache: &mut CompareCache, s: &CompareSettings, picked: &[&Entry<'_>])
         .iter()
         .filter_map(|e| {
             let r = ok_result(e.spectrum)?;
-            let ys = curve(&r.curves, s.quantity, s.pol);
+            let ys = curve(r, s.quantity);
             Some(Series {
-                name: format!("{}: {}", e.name, curve_name(s.quantity, s.pol)),
+                name: format!("{}: {}", e.name, curve_name(s.quantity)),
                 colour: e.colour,
                 points: r
                     .x
@@ -360,12 +223,23 @@ fn refresh(cache: &mut CompareCache, s: &CompareSettings, picked: &[&Entry<'_>])
         let (Some(ra), Some(rb)) = (ok_result(ea.spectrum), ok_result(eb.spectrum)) else {
             return Err("waiting for both spectra".to_owned());
         };
-        let q = |r: &'_ SweepResult| curve(&r.curves, s.quantity, s.pol).to_vec();
-        let d = difference_pp(&ra.x, &q(ra), &rb.x, &q(rb))?;
+        let d = difference(&spectrum_of(ra), &spectrum_of(rb));
+        if d.wavelength_nm.is_empty() {
+            return Err("the two spectra do not overlap".to_owned());
+        }
+        let ys = match s.quantity {
+            Quantity::R => &d.r,
+            Quantity::T => &d.t,
+        };
         Ok(Series {
             name: format!("{} − {}", ea.name, eb.name),
             colour: ea.colour,
-            points: d.into_iter().map(|(x, y)| PlotPoint::new(x, y)).collect(),
+            points: d
+                .wavelength_nm
+                .iter()
+                .zip(ys)
+                .map(|(&x, &y)| PlotPoint::new(x, 100.0 * y))
+                .collect(),
         })
     });
     cache.key = Some(key);
@@ -417,10 +291,7 @@ pub fn compare_ui(
         ui.separator();
         ui.selectable_value(&mut s.quantity, Quantity::R, "R");
         ui.selectable_value(&mut s.quantity, Quantity::T, "T");
-        ui.separator();
-        ui.selectable_value(&mut s.pol, Pol::S, "s");
-        ui.selectable_value(&mut s.pol, Pol::P, "p");
-        ui.selectable_value(&mut s.pol, Pol::Mean, "mean");
+        ui.label(RichText::new("(mean of s and p)").weak());
     });
     let picked: Vec<&Entry<'_>> = s
         .picked
@@ -497,10 +368,15 @@ pub fn compare_ui(
         }
     }
     ui.separator();
-    band_table_ui(ui, s, &picked);
+    band_table_ui(ui, s, &picked, cache);
 }
 
-fn band_table_ui(ui: &mut egui::Ui, s: &mut CompareSettings, picked: &[&Entry<'_>]) {
+fn band_table_ui(
+    ui: &mut egui::Ui,
+    s: &mut CompareSettings,
+    picked: &[&Entry<'_>],
+    cache: &mut CompareCache,
+) {
     ui.horizontal_wrapped(|ui| {
         ui.strong("Figures over a band");
         let l = ui.label("band from");
@@ -529,6 +405,15 @@ fn band_table_ui(ui: &mut egui::Ui, s: &mut CompareSettings, picked: &[&Entry<'_
         ui.add(egui::Slider::new(&mut s.band_aoi_deg, 0.0..=89.0).suffix("°"))
             .labelled_by(l.id);
     });
+    let key: TableKey = (
+        picked.iter().map(|e| (e.id, e.band.generation())).collect(),
+        s.band_from_nm.to_bits(),
+        s.band_to_nm.to_bits(),
+    );
+    if cache.table_key.as_ref() != Some(&key) {
+        cache.table = picked.iter().map(|e| figures_for(e.band, s)).collect();
+        cache.table_key = Some(key);
+    }
     egui::ScrollArea::both().show(ui, |ui| {
         egui::Grid::new("band-figures")
             .striped(true)
@@ -541,9 +426,9 @@ fn band_table_ui(ui: &mut egui::Ui, s: &mut CompareSettings, picked: &[&Entry<'_
                     ui.strong(h);
                 }
                 ui.end_row();
-                for e in picked {
+                for (e, figures) in picked.iter().zip(&cache.table) {
                     ui.colored_label(e.colour, e.name);
-                    match figures_for(e.band, s) {
+                    match figures {
                         Ok(f) => {
                             for st in [f.r, f.t] {
                                 ui.label(fmt_percent(st.mean));
@@ -566,47 +451,6 @@ fn band_table_ui(ui: &mut egui::Ui, s: &mut CompareSettings, picked: &[&Entry<'_
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    fn curves(r: &[f64], t: &[f64]) -> Curves {
-        Curves {
-            r: r.to_vec(),
-            t: t.to_vec(),
-            ..Curves::default()
-        }
-    }
-
-    #[test]
-    fn figures_cover_only_the_band_and_find_the_first_extreme() {
-        let wl = [400.0, 450.0, 500.0, 550.0, 600.0];
-        let c = curves(&[0.9, 0.2, 0.4, 0.2, 0.1], &[0.1, 0.8, 0.6, 0.8, 0.9]);
-        let f = band_figures(&wl, &c, 440.0, 560.0).unwrap();
-        assert_eq!(f.points, 3);
-        assert!((f.r.mean - (0.2 + 0.4 + 0.2) / 3.0).abs() < 1e-15);
-        assert_eq!((f.r.min, f.r.min_at_nm), (0.2, 450.0), "first of a tie");
-        assert_eq!(
-            (f.r.max, f.r.max_at_nm),
-            (0.4, 500.0),
-            "outside points ignored"
-        );
-        assert_eq!((f.t.max, f.t.max_at_nm), (0.8, 450.0));
-    }
-
-    #[test]
-    fn bad_or_empty_bands_say_why() {
-        let c = curves(&[0.1], &[0.9]);
-        let e = band_figures(&[500.0], &c, 600.0, 550.0).unwrap_err();
-        assert!(e.contains("600") && e.contains("not a range"), "{e}");
-        let e = band_figures(&[500.0], &c, 600.0, 700.0).unwrap_err();
-        assert!(e.contains("no computed wavelength"), "{e}");
-        assert!(band_figures(&[500.0], &c, f64::NAN, 700.0).is_err());
-    }
-
-    #[test]
-    fn difference_needs_the_same_grid() {
-        let e = difference_pp(&[1.0, 2.0], &[0.0, 0.0], &[1.0, 3.0], &[0.0, 0.0]).unwrap_err();
-        assert!(e.contains("point 2"), "{e}");
-        assert!(difference_pp(&[1.0], &[0.0], &[1.0, 2.0], &[0.0, 0.0]).is_err());
-    }
 
     #[test]
     fn numbers_read_well() {

@@ -307,7 +307,9 @@ impl App {
 
     /// The figures of the compare table: one row per design picked, in the order picked.
     #[must_use]
-    pub fn compare_figures(&self) -> Vec<(DesignId, Result<compare::Figures, String>)> {
+    pub fn compare_figures(
+        &self,
+    ) -> Vec<(DesignId, Result<crate::analysis::compare::Figures, String>)> {
         self.compare
             .picked
             .iter()
