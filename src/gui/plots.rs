@@ -1,6 +1,8 @@
 //! The centre views: spectrum over wavelength and response over angle, each with its own
 //! control row. They draw cached results; nothing here computes optics.
 
+use std::fmt::Write as _;
+
 use egui::{Color32, DragValue};
 use egui_plot::{HoverPosition, Legend, Line, LineStyle, Plot, PlotPoint, PlotPoints};
 
@@ -289,6 +291,7 @@ fn draw(
     x_unit: &'static str,
     y_unit: &'static str,
 ) {
+    let series = &cache.series;
     let formatter = move |hp: &HoverPosition<'_>| -> Option<String> {
         Some(match hp {
             HoverPosition::NearDataPoint {
@@ -299,8 +302,28 @@ fn draw(
                 "{plot_name}: {:.4}{y_unit}\nat {:.4} {x_unit}",
                 position.y, position.x
             ),
+            // Elsewhere: every curve's value at the computed point nearest the pointer's x.
             HoverPosition::Elsewhere { position } => {
-                format!("{:.4} {x_unit}, {:.4}{y_unit}", position.x, position.y)
+                let mut text = String::new();
+                for s in series {
+                    let nearest = s.points.iter().min_by(|a, b| {
+                        (a.x - position.x)
+                            .abs()
+                            .total_cmp(&(b.x - position.x).abs())
+                    });
+                    if let Some(p) = nearest {
+                        if text.is_empty() {
+                            text = format!("at {:.4} {x_unit}", p.x);
+                        }
+                        // Writing into a String cannot fail.
+                        write!(text, "\n{}: {:.4}{y_unit}", s.name, p.y).ok();
+                    }
+                }
+                if text.is_empty() {
+                    format!("{:.4} {x_unit}, {:.4}{y_unit}", position.x, position.y)
+                } else {
+                    text
+                }
             }
         })
     };
