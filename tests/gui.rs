@@ -427,3 +427,26 @@ fn dragging_a_layer_number_moves_the_layer() {
     assert_ne!(after, before, "the drag must change the order");
     assert_eq!(after, expected, "layer 1 now sits third from the substrate");
 }
+
+#[test]
+fn light_from_the_back_shows_what_the_engine_gives_for_the_back_side() {
+    use stackwise::analysis;
+    use stackwise::optics::Side;
+    let mut h = demo();
+    h.get_by_label("back").click();
+    h.run();
+    let v = h.state().view.clone();
+    let shown = match h.state().active().spectrum.result() {
+        Some(Ok(r)) => r.curves.r.clone(),
+        other => panic!("no spectrum: {other:?}"),
+    };
+    let d = h.state().doc().design.clone();
+    let wl = analysis::wavelengths_nm(v.from_nm, v.to_nm, v.step_nm).unwrap();
+    let back = analysis::spectrum(&d.resolve().unwrap(), &wl, v.aoi_deg, Side::Back).unwrap();
+    let front = analysis::spectrum(&d.resolve().unwrap(), &wl, v.aoi_deg, Side::Front).unwrap();
+    assert_eq!(
+        shown, back.curves.r,
+        "the window shows the back-side reflectance"
+    );
+    assert_ne!(shown, front.curves.r, "which differs from the front side's");
+}

@@ -110,6 +110,7 @@ impl CompareSettings {
             to_nm: self.band_to_nm,
             step_nm: self.band_step_nm,
             aoi_deg: self.band_aoi_deg,
+            side: crate::optics::Side::Front,
         }
     }
 

@@ -26,6 +26,8 @@ pub enum Sweep {
         step_nm: f64,
         /// Angle of incidence (degrees).
         aoi_deg: f64,
+        /// Side the light comes from.
+        side: Side,
     },
     /// Over angle of incidence at one wavelength.
     Angles {
@@ -37,6 +39,8 @@ pub enum Sweep {
         to_deg: f64,
         /// Step (degrees).
         step_deg: f64,
+        /// Side the light comes from.
+        side: Side,
     },
 }
 
@@ -63,11 +67,11 @@ pub fn run_sweep(design: &Design, sweep: &Sweep) -> Result<SweepResult, String> 
             to_nm,
             step_nm,
             aoi_deg,
+            side,
         } => {
             let wl = analysis::wavelengths_nm(from_nm, to_nm, step_nm)
                 .map_err(|e| format!("wavelength range: {e}"))?;
-            let s = analysis::spectrum(&resolved, &wl, aoi_deg, Side::Front)
-                .map_err(|e| e.to_string())?;
+            let s = analysis::spectrum(&resolved, &wl, aoi_deg, side).map_err(|e| e.to_string())?;
             (s.wavelength_nm, s.curves, s.warnings)
         }
         Sweep::Angles {
@@ -75,10 +79,11 @@ pub fn run_sweep(design: &Design, sweep: &Sweep) -> Result<SweepResult, String> 
             from_deg,
             to_deg,
             step_deg,
+            side,
         } => {
             let a = analysis::angles_deg(from_deg, to_deg, step_deg)
                 .map_err(|e| format!("angle range: {e}"))?;
-            let s = analysis::angle_scan(&resolved, wavelength_nm, &a, Side::Front)
+            let s = analysis::angle_scan(&resolved, wavelength_nm, &a, side)
                 .map_err(|e| e.to_string())?;
             (s.aoi_deg, s.curves, s.warnings)
         }
@@ -247,6 +252,7 @@ mod tests {
             to_nm: 700.0,
             step_nm: 10.0,
             aoi_deg: 0.0,
+            side: Side::Front,
         }
     }
 

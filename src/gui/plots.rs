@@ -8,6 +8,7 @@ use egui_plot::{HoverPosition, Legend, Line, LineStyle, Plot, PlotPoint, PlotPoi
 
 use crate::design::Design;
 use crate::material::EV_UM;
+use crate::optics::Side;
 
 use super::compute::{Sweep, SweepCache, SweepResult};
 use super::theme;
@@ -97,6 +98,8 @@ pub struct ViewSettings {
     pub step_nm: f64,
     /// Angle of incidence for the spectrum (degrees).
     pub aoi_deg: f64,
+    /// Side the light comes from (both views).
+    pub side: Side,
     /// Spectrum curves.
     pub spectrum_curves: Curves,
     /// Spectrum horizontal axis.
@@ -127,6 +130,7 @@ impl ViewSettings {
             to_nm: to,
             step_nm: (to - from) / 400.0,
             aoi_deg: 0.0,
+            side: Side::Front,
             spectrum_curves: Curves::default(),
             x_axis: XAxis::Wavelength,
             y_axis: YAxis::Percent,
@@ -148,6 +152,7 @@ impl ViewSettings {
             to_nm: self.to_nm,
             step_nm: self.step_nm,
             aoi_deg: self.aoi_deg,
+            side: self.side,
         }
     }
 
@@ -159,6 +164,7 @@ impl ViewSettings {
             from_deg: 0.0,
             to_deg: 89.0,
             step_deg: self.angle_step_deg,
+            side: self.side,
         }
     }
 }
@@ -437,6 +443,12 @@ pub fn spectrum_ui(
         let l = ui.label("angle of incidence");
         ui.add(egui::Slider::new(&mut s.aoi_deg, 0.0..=89.0).suffix("°"))
             .labelled_by(l.id);
+        ui.separator();
+        ui.label("light from");
+        ui.selectable_value(&mut s.side, Side::Front, "front")
+            .on_hover_text("from the incident medium onto the coating");
+        ui.selectable_value(&mut s.side, Side::Back, "back")
+            .on_hover_text("from the exit medium through the substrate (angle in the exit medium)");
     });
     if s.y_axis == YAxis::OpticalDensity {
         ui.colored_label(ui.visuals().warn_fg_color, OD_CAUTION);
