@@ -525,7 +525,8 @@ fn plot(a: &PlotArgs, stderr: &mut dyn Write) -> Result<()> {
         ImageKind::Png => export::plot::render_png(&spec, w, h)?,
         ImageKind::Svg => export::plot::render_svg(&spec, w, h)?.into_bytes(),
     };
-    std::fs::write(&a.out, bytes).with_context(|| format!("cannot write {}", a.out.display()))?;
+    export::write_atomic(&a.out, &bytes)
+        .with_context(|| format!("cannot write {}", a.out.display()))?;
     Ok(())
 }
 

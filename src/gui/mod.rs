@@ -18,8 +18,10 @@ pub mod compare;
 pub mod compute;
 pub mod designs;
 pub mod document;
+pub mod handoff;
 pub mod history;
 pub mod materials;
+pub mod measured;
 pub mod plots;
 pub mod stack;
 pub mod theme;
@@ -140,6 +142,8 @@ pub enum FileAction {
 enum DialogReply {
     Open(PathBuf),
     SaveAs(DesignId, PathBuf),
+    Export(PathBuf),
+    Measured(PathBuf),
     Cancelled,
 }
 
@@ -200,6 +204,10 @@ pub struct App {
     allow_close: bool,
     /// Which side windows are open.
     windows: Windows,
+    /// The export window.
+    pub handoff: handoff::HandoffState,
+    /// The measured curve over the spectrum.
+    pub measured: measured::MeasuredState,
     browser: materials::BrowserState,
     title_sent: String,
     commands: Vec<Command>,
@@ -256,6 +264,8 @@ impl App {
             dialog_open: false,
             allow_close: false,
             windows: Windows::default(),
+            handoff: handoff::HandoffState::default(),
+            measured: measured::MeasuredState::default(),
             browser: materials::BrowserState::default(),
             title_sent: String::new(),
             commands: Vec::new(),
@@ -592,46 +602,87 @@ impl App {
 
     /// Opens a file dialog on a named thread: Save As for design `save` if given, else Open.
     fn spawn_dialog(&mut self, ctx: &egui::Context, save: Option<DesignId>) {
+        let doc = match save.and_then(|id| self.design(id)) {
+            Some(d) => &d.doc,
+            None => self.doc(),
+        };
+        let request = handoff::FileRequest {
+            save: save.is_some(),
+            filter_name: "Stackwise design (RON)".into(),
+            extensions: vec!["ron".into()],
+            directory: doc
+                .path
+                .as_ref()
+                .and_then(|p| p.parent().map(Path::to_path_buf)),
+            file_name: save.map(|_| format!("{}.ron", doc.design.name)),
+        };
+        let reply: Box<dyn FnOnce(PathBuf) -> DialogReply + Send> = match save {
+            Some(id) => Box::new(move |p| DialogReply::SaveAs(id, p)),
+            None => Box::new(DialogReply::Open),
+        };
+        self.spawn_file_dialog(ctx, request, reply);
+    }
+
+    /// Shows `request` on the "file-dialog" thread; the answer arrives through `reply`.
+    fn spawn_file_dialog(
+        &mut self,
+        ctx: &egui::Context,
+        request: handoff::FileRequest,
+        reply: Box<dyn FnOnce(PathBuf) -> DialogReply + Send>,
+    ) {
         if self.dialog_open {
             return;
         }
         let tx = self.dialog_tx.clone();
         let ctx = ctx.clone();
-        let doc = match save.and_then(|id| self.design(id)) {
-            Some(d) => &d.doc,
-            None => self.doc(),
-        };
-        let dir = doc
-            .path
-            .as_ref()
-            .and_then(|p| p.parent().map(Path::to_path_buf));
-        let name = format!("{}.ron", doc.design.name);
         let spawned = std::thread::Builder::new()
             .name("file-dialog".into())
             .spawn(move || {
-                let mut dialog =
-                    rfd::AsyncFileDialog::new().add_filter("Stackwise design (RON)", &["ron"]);
-                if let Some(d) = dir {
+                let mut dialog = rfd::AsyncFileDialog::new()
+                    .add_filter(&request.filter_name, &request.extensions);
+                if let Some(d) = request.directory {
                     dialog = dialog.set_directory(d);
                 }
-                let reply = if let Some(id) = save {
-                    pollster::block_on(dialog.set_file_name(name).save_file())
-                        .map_or(DialogReply::Cancelled, |h| {
-                            DialogReply::SaveAs(id, h.path().into())
-                        })
+                if let Some(name) = request.file_name {
+                    dialog = dialog.set_file_name(name);
+                }
+                let picked = if request.save {
+                    pollster::block_on(dialog.save_file())
                 } else {
-                    pollster::block_on(dialog.pick_file()).map_or(DialogReply::Cancelled, |h| {
-                        DialogReply::Open(h.path().into())
-                    })
+                    pollster::block_on(dialog.pick_file())
                 };
+                let answer = picked.map_or(DialogReply::Cancelled, |h| reply(h.path().into()));
                 // The window may have closed meanwhile; then nobody needs the answer.
-                tx.send(reply).ok();
+                tx.send(answer).ok();
                 ctx.request_repaint();
             });
         match spawned {
             Ok(_) => self.dialog_open = true,
             Err(e) => self.status = Some(format!("cannot open a file dialog: {e}")),
         }
+    }
+
+    /// Writes the export chosen in the export window to `path`, as the Save dialog's answer
+    /// does; the outcome shows in the export window (and errors in the status line).
+    pub fn export_to(&mut self, path: &Path) -> Result<PathBuf, String> {
+        let doc = &self.designs[self.active_index()].doc;
+        let inputs = handoff::ExportInputs {
+            design: &doc.design,
+            design_path: doc.path.as_deref(),
+            view: &self.view,
+        };
+        let written = self.handoff.export_to(&inputs, path);
+        if let Err(e) = &written {
+            self.status = Some(format!("export: {e}"));
+        }
+        written
+    }
+
+    /// Loads the measured curve at `path` over the spectrum, as the Open dialog's answer does;
+    /// errors show in the measured-curve window.
+    pub fn load_measured(&mut self, path: &Path) -> Result<(), String> {
+        self.measured.open = true;
+        self.measured.load(path)
     }
 
     fn handle_input(&mut self, ctx: &egui::Context) {
@@ -652,6 +703,14 @@ impl App {
                     {
                         self.file_action(ctx, next);
                     }
+                }
+                DialogReply::Export(p) => {
+                    // The outcome shows in the export window.
+                    self.export_to(&p).ok();
+                }
+                DialogReply::Measured(p) => {
+                    // The outcome shows in the measured-curve window.
+                    self.load_measured(&p).ok();
                 }
                 DialogReply::Cancelled => {}
             }
@@ -729,6 +788,7 @@ impl App {
             });
         egui::CentralPanel::default().show(ui, |ui| self.central_ui(ui));
         self.dialogs_ui(&ctx);
+        self.handoff_windows_ui(&ctx);
 
         if !self.commands.is_empty() || !self.window_commands.is_empty() {
             self.apply_queued();
@@ -807,6 +867,7 @@ impl App {
                         &active.spectrum,
                         &over_s,
                         &mut self.spectrum_plot,
+                        self.measured.overlay().as_slice(),
                     );
                 });
                 ui.separator();
@@ -990,6 +1051,12 @@ impl App {
             if ui.button("Cautions").clicked() {
                 self.windows.cautions = !self.windows.cautions;
             }
+            if ui.button("Export…").clicked() {
+                self.handoff.open = !self.handoff.open;
+            }
+            if ui.button("Measured curve…").clicked() {
+                self.measured.open = !self.measured.open;
+            }
             ui.separator();
             let file = self
                 .doc()
@@ -1135,6 +1202,33 @@ impl App {
                     }
                 });
             });
+    }
+
+    /// The export and measured-curve windows; their file dialogs go through the dialog thread.
+    fn handoff_windows_ui(&mut self, ctx: &egui::Context) {
+        let i = self.active_index();
+        let doc = &self.designs[i].doc;
+        let inputs = handoff::ExportInputs {
+            design: &doc.design,
+            design_path: doc.path.as_deref(),
+            view: &self.view,
+        };
+        let export = handoff::handoff_window(ctx, &mut self.handoff, &inputs);
+        if let Some(handoff::HandoffAction::ChooseFile(req)) = export {
+            self.spawn_file_dialog(ctx, req, Box::new(DialogReply::Export));
+        }
+        let active = &self.designs[i];
+        let folder = active.doc.path.as_deref().and_then(Path::parent);
+        let measured = measured::measured_window(
+            ctx,
+            &mut self.measured,
+            &active.spectrum,
+            &self.view,
+            folder,
+        );
+        if let Some(measured::MeasuredAction::ChooseFile(req)) = measured {
+            self.spawn_file_dialog(ctx, req, Box::new(DialogReply::Measured));
+        }
     }
 
     fn dialogs_ui(&mut self, ctx: &egui::Context) {

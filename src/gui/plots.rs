@@ -4,7 +4,7 @@
 use std::fmt::Write as _;
 
 use egui::{Color32, DragValue};
-use egui_plot::{HoverPosition, Legend, Line, LineStyle, Plot, PlotPoint, PlotPoints};
+use egui_plot::{HoverPosition, Legend, Line, LineStyle, Plot, PlotPoint, PlotPoints, Points};
 
 use crate::design::Design;
 use crate::material::EV_UM;
@@ -180,6 +180,44 @@ pub struct Overlay<'a> {
     pub sweeps: &'a SweepCache,
 }
 
+// --- measured overlay (see gui::measured) ---
+/// A measured curve drawn over the spectrum: wavelengths (nm) and values (fractions).
+#[derive(Clone, Copy, Debug)]
+pub struct MeasuredOverlay<'a> {
+    /// The legend text.
+    pub name: &'a str,
+    /// Its colour.
+    pub colour: Color32,
+    /// Wavelengths (nm).
+    pub wavelength_nm: &'a [f64],
+    /// Values (fractions).
+    pub value: &'a [f64],
+    /// Whether the values are T (also drawn in the optical density view).
+    pub transmittance: bool,
+    /// Drawn as points, else as a line.
+    pub as_points: bool,
+}
+
+/// A measured curve's points on the spectrum's axes; none for R in the optical density view.
+fn measured_points(o: &MeasuredOverlay<'_>, x: XAxis, y: YAxis) -> Vec<PlotPoint> {
+    if y == YAxis::OpticalDensity && !o.transmittance {
+        return Vec::new();
+    }
+    o.wavelength_nm
+        .iter()
+        .zip(o.value)
+        .filter_map(|(&nm, &v)| {
+            let yv = match y {
+                YAxis::Percent => 100.0 * v,
+                YAxis::OpticalDensity => -v.log10(),
+            };
+            let xv = x.value_at_nm(nm);
+            (yv.is_finite() && xv.is_finite()).then_some(PlotPoint::new(xv, yv))
+        })
+        .collect()
+}
+// --- end measured overlay ---
+
 /// One drawable curve.
 struct Series {
     name: String,
@@ -288,10 +326,12 @@ fn curve_toggles_ui(ui: &mut egui::Ui, c: &mut Curves, with_rta: bool) {
     ui.checkbox(&mut c.mean, "mean");
 }
 
+#[expect(clippy::too_many_arguments, reason = "one plot's labels and data")]
 fn draw(
     ui: &mut egui::Ui,
     id: &str,
     cache: &PlotCache,
+    measured: &[(&MeasuredOverlay<'_>, Vec<PlotPoint>)],
     x_label: &str,
     y_label: &str,
     x_unit: &'static str,
@@ -347,6 +387,14 @@ fn draw(
                         .width(1.5),
                 );
             }
+            for (o, points) in measured {
+                let points = PlotPoints::Borrowed(points);
+                if o.as_points {
+                    plot_ui.points(Points::new(o.name, points).color(o.colour).radius(2.0));
+                } else {
+                    plot_ui.line(Line::new(o.name, points).color(o.colour).width(1.5));
+                }
+            }
         });
 }
 
@@ -395,13 +443,15 @@ fn overlay_errors_ui(ui: &mut egui::Ui, overlays: &[Overlay<'_>]) {
     }
 }
 
-/// The spectrum view with its control row; `overlays` are drawn over the active design.
+/// The spectrum view with its control row; `overlays` (other designs) are drawn over the active
+/// design, and `measured` curves over both.
 pub fn spectrum_ui(
     ui: &mut egui::Ui,
     s: &mut ViewSettings,
     sweeps: &SweepCache,
     overlays: &[Overlay<'_>],
     plot: &mut PlotCache,
+    measured: &[MeasuredOverlay<'_>],
 ) {
     ui.horizontal_wrapped(|ui| {
         ui.strong("Spectrum");
@@ -475,10 +525,15 @@ pub fn spectrum_ui(
         XAxis::Wavenumber => "cm⁻¹",
         XAxis::PhotonEnergy => "eV",
     };
+    let measured: Vec<_> = measured
+        .iter()
+        .map(|o| (o, measured_points(o, s.x_axis, s.y_axis)))
+        .collect();
     draw(
         ui,
         "spectrum-plot",
         plot,
+        &measured,
         s.x_axis.label(),
         y_label,
         x_unit,
@@ -531,6 +586,7 @@ pub fn angle_ui(
         ui,
         "angle-plot",
         plot,
+        &[],
         "angle of incidence (°)",
         "R, T, A (%)",
         "°",
