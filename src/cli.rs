@@ -1,7 +1,6 @@
 //! The command line: the same engine as the window, without a window.
 
-use std::fs::File;
-use std::io::{self, BufWriter, Write};
+use std::io::{self, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
@@ -315,13 +314,21 @@ pub fn load_design(path: &Path) -> Result<Design> {
     Ok(d)
 }
 
-fn output<'w>(out: Option<&Path>, stdout: &'w mut dyn Write) -> Result<Box<dyn Write + 'w>> {
-    Ok(match out {
-        Some(p) => Box::new(BufWriter::new(
-            File::create(p).with_context(|| format!("cannot create {}", p.display()))?,
-        )),
-        None => Box::new(stdout),
-    })
+/// Writes what `fill` produces to the file `out` (atomically: never half written) or, without
+/// one, to standard output.
+fn emit(
+    out: Option<&Path>,
+    stdout: &mut dyn Write,
+    fill: impl FnOnce(&mut Vec<u8>) -> io::Result<()>,
+) -> Result<()> {
+    let mut bytes = Vec::new();
+    fill(&mut bytes)?;
+    match out {
+        Some(p) => export::write_atomic(p, &bytes)
+            .with_context(|| format!("cannot write {}", p.display()))?,
+        None => stdout.write_all(&bytes)?,
+    }
+    Ok(())
 }
 
 fn report(warnings: &[Warning], stderr: &mut dyn Write) -> Result<()> {
@@ -345,7 +352,9 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
             let wl = range.wavelengths_nm(0.7 * d.reference_nm, 1.5 * d.reference_nm)?;
             let s = analysis::spectrum(&d.resolve()?, &wl, aoi, side.into())?;
             report(&s.warnings, stderr)?;
-            export::csv::write_spectrum(output(out.as_deref(), stdout)?, &s)?;
+            emit(out.as_deref(), stdout, |w| {
+                export::csv::write_spectrum(w, &s)
+            })?;
         }
         Command::Angles {
             design,
@@ -364,7 +373,7 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
                 .context("angle range (--from, --to, --step)")?;
             let s = analysis::angle_scan(&d.resolve()?, wavelength, &angles, side.into())?;
             report(&s.warnings, stderr)?;
-            export::csv::write_angles(output(out.as_deref(), stdout)?, &s)?;
+            emit(out.as_deref(), stdout, |w| export::csv::write_angles(w, &s))?;
         }
         Command::Nk {
             material,
@@ -539,10 +548,7 @@ fn report_cmd(a: &ReportArgs, stdout: &mut dyn Write) -> Result<()> {
         ReportFormat::Md => r.to_markdown(),
         ReportFormat::Html => r.to_html(),
     };
-    let mut w = output(a.out.as_deref(), stdout)?;
-    w.write_all(text.as_bytes())?;
-    w.flush()?;
-    Ok(())
+    emit(a.out.as_deref(), stdout, |w| w.write_all(text.as_bytes()))
 }
 
 fn measured_cmd(a: &MeasuredArgs, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Result<()> {

@@ -309,22 +309,29 @@ fn replace_line(text: &str, line: &str, with: &str) -> String {
 /// renames it over `path`. On any failure the previous file is left as it was.
 pub fn save(path: &Path, design: &Design) -> Result<(), DesignFileError> {
     let text = to_ron_string(design).map_err(|e| e.in_file(path))?;
-    let write_err = |err| DesignFileError::Write {
+    write_atomic(path, text.as_bytes()).map_err(|err| DesignFileError::Write {
         err,
         path: Some(path.into()),
-    };
+    })
+}
+
+/// Writes `bytes` to `path` so that the file is either the old one or the whole new one, never
+/// half written: a `<name>.tmp` beside it is written and synced, then renamed over `path`, and
+/// the folder entry is synced where the platform allows. Used for designs and for every
+/// export.
+pub fn write_atomic(path: &Path, bytes: &[u8]) -> io::Result<()> {
     let Some(file_name) = path.file_name() else {
-        return Err(write_err(io::Error::new(
+        return Err(io::Error::new(
             io::ErrorKind::InvalidInput,
             "the path does not end in a file name",
-        )));
+        ));
     };
     let mut tmp_name = file_name.to_os_string();
     tmp_name.push(".tmp");
     let tmp = path.with_file_name(tmp_name);
     let written = (|| {
         let mut f = fs::File::create(&tmp)?;
-        f.write_all(text.as_bytes())?;
+        f.write_all(bytes)?;
         f.sync_all()?;
         drop(f);
         fs::rename(&tmp, path)
@@ -332,7 +339,7 @@ pub fn save(path: &Path, design: &Design) -> Result<(), DesignFileError> {
     if let Err(err) = written {
         // Best effort: the write already failed, and a leftover .tmp is harmless.
         fs::remove_file(&tmp).ok();
-        return Err(write_err(err));
+        return Err(err);
     }
     sync_folder(path);
     Ok(())

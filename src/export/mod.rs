@@ -5,44 +5,7 @@ pub mod csv;
 pub mod plot;
 pub mod report;
 
-use std::fs;
-use std::io::{self, Write as _};
-use std::path::Path;
-
-/// Writes `bytes` to `path` atomically: to `<file>.tmp` in the same folder, flushed to disk,
-/// then renamed over `path`. On failure the temporary file is removed (best effort) and any
-/// previous file at `path` is left as it was.
-///
-/// ```
-/// let dir = tempfile::tempdir()?;
-/// let p = dir.path().join("out.csv");
-/// stackwise::export::write_atomic(&p, b"a,b\n")?;
-/// assert_eq!(std::fs::read(&p)?, b"a,b\n");
-/// # Ok::<(), std::io::Error>(())
-/// ```
-pub fn write_atomic(path: &Path, bytes: &[u8]) -> io::Result<()> {
-    let Some(name) = path.file_name() else {
-        return Err(io::Error::new(
-            io::ErrorKind::InvalidInput,
-            "the path does not end in a file name",
-        ));
-    };
-    let mut tmp_name = name.to_os_string();
-    tmp_name.push(".tmp");
-    let tmp = path.with_file_name(tmp_name);
-    let written = (|| {
-        let mut f = fs::File::create(&tmp)?;
-        f.write_all(bytes)?;
-        f.sync_all()?;
-        drop(f);
-        fs::rename(&tmp, path)
-    })();
-    if written.is_err() {
-        // Best effort: the write already failed, and a leftover .tmp is harmless.
-        fs::remove_file(&tmp).ok();
-    }
-    written
-}
+pub use crate::design::file::write_atomic;
 
 /// One line that goes on every exported image or report of blocking (optical density) data or
 /// of a laser mirror.
