@@ -24,8 +24,8 @@ use crate::optics::Side;
     args_conflicts_with_subcommands = true
 )]
 pub struct Cli {
-    /// A design file to open in the window.
-    pub design: Option<PathBuf>,
+    /// Design files to open in the window (none: a demo design).
+    pub designs: Vec<PathBuf>,
     /// What to do without a window.
     #[command(subcommand)]
     pub command: Option<Command>,
@@ -279,10 +279,10 @@ pub enum Command {
 }
 
 /// Parses the process arguments and runs; `open_window` is called when no command is given.
-pub fn main(open_window: impl FnOnce(Option<PathBuf>) -> Result<()>) -> ExitCode {
+pub fn main(open_window: impl FnOnce(Vec<PathBuf>) -> Result<()>) -> ExitCode {
     let cli = Cli::parse();
     let result = match cli.command {
-        None => open_window(cli.design),
+        None => open_window(cli.designs),
         Some(cmd) => run(cmd, &mut io::stdout().lock(), &mut io::stderr().lock()),
     };
     match result {

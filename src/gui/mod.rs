@@ -52,8 +52,8 @@ pub const AUTOSAVE_DELAY: Duration = Duration::from_secs(3);
 /// Most recent files remembered.
 const MAX_RECENT: usize = 10;
 
-/// Opens the window, with the design at `path` loaded if given (else a demo design).
-pub fn run(path: Option<PathBuf>) -> Result<()> {
+/// Opens the window with the designs at `paths` (each in its own tab), or a demo design.
+pub fn run(paths: Vec<PathBuf>) -> Result<()> {
     let options = eframe::NativeOptions {
         viewport: egui::ViewportBuilder::default()
             .with_inner_size([1400.0, 900.0])
@@ -67,7 +67,11 @@ pub fn run(path: Option<PathBuf>) -> Result<()> {
         "Stackwise",
         options,
         Box::new(move |cc| {
-            let mut app = App::new(path);
+            let mut paths = paths.into_iter();
+            let mut app = App::new(paths.next());
+            for p in paths {
+                app.apply(Command::Open(p));
+            }
             app.recovery_dir = eframe::storage_dir("Stackwise").map(|d| d.join("recovery"));
             app.check_recovery();
             if let Some(storage) = cc.storage
@@ -813,7 +817,17 @@ impl App {
     fn central_ui(&mut self, ui: &mut egui::Ui) {
         ui.horizontal_wrapped(|ui| {
             ui.selectable_value(&mut self.central, CentralView::Plots, "Spectrum and angle");
-            ui.selectable_value(&mut self.central, CentralView::Compare, "Compare designs");
+            let to_compare = ui
+                .selectable_value(&mut self.central, CentralView::Compare, "Compare designs")
+                .clicked();
+            // The first time, compare every open design; the ticks are the user's after that.
+            if to_compare && self.compare.picked.is_empty() {
+                for d in &self.designs {
+                    let on = true;
+                    self.window_commands
+                        .push(WindowCommand::SetCompared { id: d.id, on });
+                }
+            }
             if self.central == CentralView::Plots {
                 ui.separator();
                 ui.label("overlay:");
