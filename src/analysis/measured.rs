@@ -23,9 +23,7 @@ use std::fmt;
 
 use super::Spectrum;
 use crate::design::{Pol, Quantity};
-use crate::material::import::{
-    GUESS_UM_BELOW, Sep, WavelengthUnit, starts_with_number, strip_comment, unit_in_header,
-};
+use crate::material::import::{GUESS_UM_BELOW, Sep, WavelengthUnit, text_table, unit_in_header};
 
 /// Values above this (in any row) mean the column is in percent when the scale is detected.
 pub const PERCENT_ABOVE: f64 = 1.5;
@@ -200,32 +198,12 @@ struct Scan<'a> {
 
 /// One pass over the lines: header, separator, rows.
 fn scan(text: &str) -> Result<Scan<'_>, MeasuredError> {
-    let mut header = String::new();
-    let mut header_lines = 0_usize;
-    let mut sep: Option<Sep> = None;
+    let table = text_table(text);
+    let (header, header_lines, sep) = (table.header, table.header_lines, table.sep);
     let mut used_comma = false;
-    let mut rows: Vec<Row<'_>> = Vec::new();
-    for (idx, raw) in text.lines().enumerate() {
-        let line = idx + 1;
-        let trimmed = raw.trim();
-        if let Some(comment) = trimmed.strip_prefix('#') {
-            if rows.is_empty() {
-                header.push_str(comment);
-                header.push('\n');
-            }
-            continue;
-        }
-        let content = strip_comment(trimmed);
-        if content.is_empty() {
-            continue;
-        }
-        if rows.is_empty() && !starts_with_number(content) {
-            header.push_str(content);
-            header.push('\n');
-            header_lines += 1;
-            continue;
-        }
-        let s = *sep.get_or_insert_with(|| Sep::detect(content));
+    let mut rows: Vec<Row<'_>> = Vec::with_capacity(table.data.len());
+    for &(line, content) in &table.data {
+        let s = sep.unwrap_or(Sep::Comma);
         let cells = s.split(content);
         match cells.len() {
             0 | 1 => {

@@ -413,22 +413,34 @@ fn read_row<'a>(
     })
 }
 
-/// One pass over the lines: header, separator, rows.
-fn scan(text: &str) -> Result<Scan<'_>, ImportError> {
-    let mut header_text = String::new();
-    let mut header_lines = 0_usize;
-    let mut sep: Option<Sep> = None;
-    let mut first_row: Option<(usize, usize)> = None; // (line, columns)
-    let mut used_comma = false;
-    let mut rows: Vec<RawRow<'_>> = Vec::new();
+/// The lines of a small numeric table, sorted out: header text (`#` comments and non-numeric
+/// lines before the first data line), the separator found on the first data line, and each
+/// data line with its 1-based number. Shared by the n,k and the measured-curve importers.
+pub(crate) struct TextTable<'a> {
+    /// Header text, one line per header or comment line.
+    pub header: String,
+    /// How many non-comment header lines came before the data.
+    pub header_lines: usize,
+    /// The separator of the first data line (`None` when there is no data line).
+    pub sep: Option<Sep>,
+    /// (line number, content without trailing comment) of each data line.
+    pub data: Vec<(usize, &'a str)>,
+}
 
+/// Sorts the lines of `text` into header and data (see [`TextTable`]).
+pub(crate) fn text_table(text: &str) -> TextTable<'_> {
+    let mut t = TextTable {
+        header: String::new(),
+        header_lines: 0,
+        sep: None,
+        data: Vec::new(),
+    };
     for (idx, raw_line) in text.lines().enumerate() {
-        let line = idx + 1;
         let trimmed = raw_line.trim();
         if let Some(comment) = trimmed.strip_prefix('#') {
-            if rows.is_empty() {
-                header_text.push_str(comment);
-                header_text.push('\n');
+            if t.data.is_empty() {
+                t.header.push_str(comment);
+                t.header.push('\n');
             }
             continue;
         }
@@ -436,15 +448,30 @@ fn scan(text: &str) -> Result<Scan<'_>, ImportError> {
         if content.is_empty() {
             continue;
         }
-        if rows.is_empty() && !starts_with_number(content) {
-            header_text.push_str(content);
-            header_text.push('\n');
-            header_lines += 1;
+        if t.data.is_empty() && !starts_with_number(content) {
+            t.header.push_str(content);
+            t.header.push('\n');
+            t.header_lines += 1;
             continue;
         }
-        let s = *sep.get_or_insert_with(|| Sep::detect(content));
+        t.sep.get_or_insert_with(|| Sep::detect(content));
+        t.data.push((idx + 1, content));
+    }
+    t
+}
+
+/// One pass over the lines: header, separator, rows.
+fn scan(text: &str) -> Result<Scan<'_>, ImportError> {
+    let table = text_table(text);
+    let mut first_row: Option<(usize, usize)> = None; // (line, columns)
+    let mut used_comma = false;
+    let mut rows: Vec<RawRow<'_>> = Vec::with_capacity(table.data.len());
+    let sep = table.sep;
+    for &(line, content) in &table.data {
+        let s = sep.unwrap_or(Sep::Comma);
         rows.push(read_row(content, line, s, &mut first_row, &mut used_comma)?);
     }
+    let (header_text, header_lines) = (table.header, table.header_lines);
     let (Some(sep), Some((first_line, columns))) = (sep, first_row) else {
         return Err(ImportError::NoRows);
     };
