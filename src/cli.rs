@@ -413,11 +413,11 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
                 writeln!(
                     stdout,
                     "{},{},{},{},{}",
-                    csv_field(&m.name),
-                    csv_field(m.model.kind_name()),
+                    crate::export::csv::field(&m.name),
+                    crate::export::csv::field(m.model.kind_name()),
                     fmt(lo),
                     fmt(hi),
-                    csv_field(&m.source)
+                    crate::export::csv::field(&m.source)
                 )?;
             }
         }
@@ -430,15 +430,6 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
         }
     }
     Ok(())
-}
-
-/// Quotes a CSV field when it holds a comma, quote or line break.
-fn csv_field(s: &str) -> String {
-    if s.contains([',', '"', '\n', '\r']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
-    } else {
-        s.to_owned()
-    }
 }
 
 fn info(d: &Design, out: &mut dyn Write) -> Result<()> {

@@ -47,3 +47,20 @@ pub fn write_nk(mut w: impl Write, rows: &[(f64, f64, f64)]) -> io::Result<()> {
     }
     w.flush()
 }
+
+/// Quotes a CSV field when it holds a comma, quote or line break.
+///
+/// ```
+/// use stackwise::export::csv::field;
+/// assert_eq!(field("TiO2"), "TiO2");
+/// assert_eq!(field("Sellmeier, 3 terms"), "\"Sellmeier, 3 terms\"");
+/// assert_eq!(field("a \"b\""), "\"a \"\"b\"\"\"");
+/// ```
+#[must_use]
+pub fn field(s: &str) -> String {
+    if s.contains([',', '"', '\n', '\r']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_owned()
+    }
+}

@@ -158,7 +158,7 @@ impl LayerReport {
                 s,
                 "{},{},{},{},{},{},{}",
                 r.no,
-                csv_field(&r.material),
+                crate::export::csv::field(&r.material),
                 r.nm,
                 r.qwot,
                 r.optical_nm,
@@ -168,7 +168,13 @@ impl LayerReport {
         }
         s.push_str("\nmaterial,layers,nm\n");
         for t in &self.per_material {
-            writeln!(s, "{},{},{}", csv_field(&t.material), t.count, t.nm)?;
+            writeln!(
+                s,
+                "{},{},{}",
+                crate::export::csv::field(&t.material),
+                t.count,
+                t.nm
+            )?;
         }
         writeln!(s, "all,{},{}", self.rows.len(), self.total_nm)?;
         Ok(())
@@ -312,15 +318,6 @@ impl LayerReport {
     }
 }
 
-/// Quotes a CSV field when it holds a comma, quote or line break.
-fn csv_field(s: &str) -> String {
-    if s.contains([',', '"', '\n', '\r']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
-    } else {
-        s.to_owned()
-    }
-}
-
 /// Line breaks turned into spaces, for `#` header lines.
 fn one_line(s: &str) -> String {
     s.replace(['\r', '\n'], " ")
@@ -374,7 +371,7 @@ mod tests {
 
     #[test]
     fn csv_fields_with_commas_are_quoted() {
-        assert_eq!(csv_field("a,\"b\""), "\"a,\"\"b\"\"\"");
-        assert_eq!(csv_field("plain"), "plain");
+        assert_eq!(crate::export::csv::field("a,\"b\""), "\"a,\"\"b\"\"\"");
+        assert_eq!(crate::export::csv::field("plain"), "plain");
     }
 }
