@@ -6,7 +6,7 @@
 //! difference come from [`crate::analysis::compare`], the same functions the command line
 //! uses. Nothing here computes optics.
 
-use egui::{Color32, DragValue, RichText};
+use egui::{Color32, RichText};
 use egui_plot::{Legend, Line, Plot, PlotPoint, PlotPoints};
 
 use crate::analysis::Spectrum;
@@ -14,6 +14,7 @@ use crate::analysis::compare::{Figures, band_figures, difference};
 
 use super::compute::{Sweep, SweepCache, SweepResult};
 use super::designs::{DesignId, WindowCommand};
+use super::plots::number_ui;
 
 /// A cached sweep over wavelength as the engine's [`Spectrum`] (copies the arrays).
 fn spectrum_of(r: &SweepResult) -> Spectrum {
@@ -380,28 +381,30 @@ fn band_table_ui(
 ) {
     ui.horizontal_wrapped(|ui| {
         ui.strong("Figures over a band");
-        let l = ui.label("band from");
-        ui.add(
-            DragValue::new(&mut s.band_from_nm)
-                .range(1.0..=100_000.0)
-                .suffix(" nm"),
-        )
-        .labelled_by(l.id);
-        let l = ui.label("band to");
-        ui.add(
-            DragValue::new(&mut s.band_to_nm)
-                .range(1.0..=100_000.0)
-                .suffix(" nm"),
-        )
-        .labelled_by(l.id);
-        let l = ui.label("band step");
-        ui.add(
-            DragValue::new(&mut s.band_step_nm)
-                .range(0.01..=1000.0)
-                .speed(0.01)
-                .suffix(" nm"),
-        )
-        .labelled_by(l.id);
+        number_ui(
+            ui,
+            "band from",
+            &mut s.band_from_nm,
+            1.0..=100_000.0,
+            1.0,
+            " nm",
+        );
+        number_ui(
+            ui,
+            "band to",
+            &mut s.band_to_nm,
+            1.0..=100_000.0,
+            1.0,
+            " nm",
+        );
+        number_ui(
+            ui,
+            "band step",
+            &mut s.band_step_nm,
+            0.01..=1000.0,
+            0.01,
+            " nm",
+        );
         let l = ui.label("band angle");
         ui.add(egui::Slider::new(&mut s.band_aoi_deg, 0.0..=89.0).suffix("°"))
             .labelled_by(l.id);

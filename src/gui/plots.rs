@@ -218,6 +218,25 @@ fn measured_points(o: &MeasuredOverlay<'_>, x: XAxis, y: YAxis) -> Vec<PlotPoint
 }
 // --- end measured overlay ---
 
+/// A labelled number field (the label is linked so tests and screen readers find it).
+pub(super) fn number_ui(
+    ui: &mut egui::Ui,
+    label: &str,
+    value: &mut f64,
+    range: std::ops::RangeInclusive<f64>,
+    speed: f64,
+    suffix: &str,
+) -> egui::Response {
+    let l = ui.label(label);
+    ui.add(
+        DragValue::new(value)
+            .range(range)
+            .speed(speed)
+            .suffix(suffix),
+    )
+    .labelled_by(l.id)
+}
+
 /// One drawable curve.
 struct Series {
     name: String,
@@ -457,28 +476,9 @@ pub fn spectrum_ui(
         ui.strong("Spectrum");
         curve_toggles_ui(ui, &mut s.spectrum_curves, true);
         ui.separator();
-        let l = ui.label("from");
-        ui.add(
-            DragValue::new(&mut s.from_nm)
-                .range(1.0..=100_000.0)
-                .suffix(" nm"),
-        )
-        .labelled_by(l.id);
-        let l = ui.label("to");
-        ui.add(
-            DragValue::new(&mut s.to_nm)
-                .range(1.0..=100_000.0)
-                .suffix(" nm"),
-        )
-        .labelled_by(l.id);
-        let l = ui.label("step");
-        ui.add(
-            DragValue::new(&mut s.step_nm)
-                .range(0.001..=10_000.0)
-                .speed(0.01)
-                .suffix(" nm"),
-        )
-        .labelled_by(l.id);
+        number_ui(ui, "from", &mut s.from_nm, 1.0..=100_000.0, 1.0, " nm");
+        number_ui(ui, "to", &mut s.to_nm, 1.0..=100_000.0, 1.0, " nm");
+        number_ui(ui, "step", &mut s.step_nm, 0.001..=10_000.0, 0.01, " nm");
     });
     ui.horizontal_wrapped(|ui| {
         ui.label("x:");
@@ -553,21 +553,22 @@ pub fn angle_ui(
         ui.strong("Angle");
         curve_toggles_ui(ui, &mut s.angle_curves, true);
         ui.separator();
-        let l = ui.label("at wavelength");
-        ui.add(
-            DragValue::new(&mut s.angle_wavelength_nm)
-                .range(1.0..=100_000.0)
-                .suffix(" nm"),
-        )
-        .labelled_by(l.id);
-        let l = ui.label("angle step");
-        ui.add(
-            DragValue::new(&mut s.angle_step_deg)
-                .range(0.05..=10.0)
-                .speed(0.05)
-                .suffix("°"),
-        )
-        .labelled_by(l.id);
+        number_ui(
+            ui,
+            "at wavelength",
+            &mut s.angle_wavelength_nm,
+            1.0..=100_000.0,
+            1.0,
+            " nm",
+        );
+        number_ui(
+            ui,
+            "angle step",
+            &mut s.angle_step_deg,
+            0.05..=10.0,
+            0.05,
+            "°",
+        );
     });
     if let Some(Err(e)) = sweeps.result() {
         ui.colored_label(ui.visuals().error_fg_color, format!("cannot compute: {e}"));
