@@ -1250,6 +1250,8 @@ impl App {
             let mut open = true;
             egui::Window::new("Problem with a design file")
                 .collapsible(false)
+                .anchor(egui::Align2::CENTER_TOP, [0.0, 120.0])
+                .default_width(520.0)
                 .open(&mut open)
                 .show(ctx, |ui| {
                     ui.label(&msg);
