@@ -25,7 +25,7 @@ pub const MEASURED_COLOUR: Color32 = Color32::from_rgb(150, 70, 180);
 pub struct LoadedCurve {
     /// The file it came from.
     pub path: PathBuf,
-    /// The legend text: "measured: <file name>".
+    /// The legend text: `measured: <file name>`.
     pub label: String,
     /// The curve (nm, fractions).
     pub curve: MeasuredCurve,
