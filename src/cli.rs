@@ -209,6 +209,29 @@ pub struct MeasuredArgs {
     pub aoi: f64,
 }
 
+/// Settings of the compare command.
+#[derive(Debug, Args)]
+pub struct CompareArgs {
+    /// The design files (.ron), two or more.
+    #[arg(required = true, num_args = 2..)]
+    pub designs: Vec<PathBuf>,
+    /// Band start, nm.
+    #[arg(long)]
+    pub from: f64,
+    /// Band end, nm.
+    #[arg(long)]
+    pub to: f64,
+    /// Wavelength step inside the band, nm [default: 400 steps over the band].
+    #[arg(long)]
+    pub step: Option<f64>,
+    /// Angle of incidence in degrees.
+    #[arg(long, default_value_t = 0.0)]
+    pub aoi: f64,
+    /// Write the CSV here instead of standard output.
+    #[arg(long)]
+    pub out: Option<PathBuf>,
+}
+
 /// Headless commands.
 #[derive(Debug, Subcommand)]
 pub enum Command {
@@ -271,6 +294,9 @@ pub enum Command {
     Report(ReportArgs),
     /// Compares a measured R or T curve (CSV: wavelength, value) with a design's computed one.
     Measured(MeasuredArgs),
+    /// Figures of several designs over a band as CSV: mean, minimum and maximum of R and T
+    /// (mean of s and p) and where each extreme lies.
+    Compare(CompareArgs),
     /// The layer table of a design: material, nm, QWOT and optical thickness.
     Info {
         /// The design file (.ron).
@@ -312,6 +338,28 @@ pub fn load_design(path: &Path) -> Result<Design> {
         bail!("{e} (in {})", path.display());
     }
     Ok(d)
+}
+
+fn compare_cmd(a: &CompareArgs, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Result<()> {
+    let band = Range {
+        from: Some(a.from),
+        to: Some(a.to),
+        step: a.step,
+    };
+    let wl = band.wavelengths_nm(a.from, a.to)?;
+    let mut rows = Vec::with_capacity(a.designs.len());
+    for path in &a.designs {
+        let d = load_design(path)?;
+        let s = analysis::spectrum(&d.resolve()?, &wl, a.aoi, Side::Front)
+            .with_context(|| format!("design {:?}", d.name))?;
+        report(&s.warnings, stderr)?;
+        let f = analysis::compare::band_figures(&s, a.from, a.to)
+            .with_context(|| format!("design {:?}", d.name))?;
+        rows.push((d.name, f));
+    }
+    emit(a.out.as_deref(), stdout, |w| {
+        export::csv::write_compare(w, &rows)
+    })
 }
 
 /// Writes what `fill` produces to the file `out` (atomically: never half written) or, without
@@ -424,6 +472,7 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
         Command::Plot(args) => plot(&args, stderr)?,
         Command::Report(args) => report_cmd(&args, stdout)?,
         Command::Measured(args) => measured_cmd(&args, stdout, stderr)?,
+        Command::Compare(args) => compare_cmd(&args, stdout, stderr)?,
         Command::Info { design } => {
             let d = load_design(&design)?;
             info(&d, stdout)?;

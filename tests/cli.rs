@@ -266,3 +266,63 @@ fn out_writes_the_same_csv_to_a_file() {
     assert!(nothing.is_empty(), "--out writes nothing to stdout");
     assert_eq!(std::fs::read_to_string(&out).unwrap(), stdout);
 }
+
+#[test]
+fn compare_prints_each_designs_band_figures() {
+    let (a, b) = (here(EXAMPLES[0]), here(EXAMPLES[2]));
+    let (csv, _) = ok(&[
+        "compare",
+        a.to_str().unwrap(),
+        b.to_str().unwrap(),
+        "--from",
+        "450",
+        "--to",
+        "650",
+        "--step",
+        "2",
+        "--aoi",
+        "10",
+    ]);
+    let mut lines = csv.lines();
+    assert!(
+        lines
+            .next()
+            .unwrap()
+            .starts_with("design,from_nm,to_nm,points,R_mean"),
+        "{csv}"
+    );
+    let wl = wavelengths_nm(450.0, 650.0, 2.0).unwrap();
+    for (path, line) in [a, b].iter().zip(lines) {
+        let d = file::load(path).unwrap();
+        let s = spectrum(&d.resolve().unwrap(), &wl, 10.0, Side::Front).unwrap();
+        // Mean and maximum of R by a plain loop over the engine's arrays.
+        let r = &s.curves.r;
+        let mean = r.iter().sum::<f64>() / r.len() as f64;
+        let (imax, max) = r
+            .iter()
+            .copied()
+            .enumerate()
+            .fold((0, f64::MIN), |m, (i, v)| if v > m.1 { (i, v) } else { m });
+        let cells: Vec<&str> = line
+            .rsplitn(14, ',')
+            .collect::<Vec<_>>()
+            .into_iter()
+            .rev()
+            .collect();
+        assert_eq!(cells.len(), 14, "{line}");
+        let num = |i: usize| cells[i].parse::<f64>().expect("a number");
+        assert_eq!(num(3), 101.0, "points");
+        assert!((num(4) - mean).abs() < 1e-12, "R mean {} vs {mean}", num(4));
+        assert!((num(7) - max).abs() < 1e-15, "R max");
+        assert!((num(8) - wl[imax]).abs() < 1e-9, "R max at {}", num(8));
+    }
+    let e = fails(&[
+        "compare",
+        here(EXAMPLES[0]).to_str().unwrap(),
+        "--from",
+        "450",
+        "--to",
+        "650",
+    ]);
+    assert!(e.contains("2 values required"), "{e}");
+}

@@ -5,7 +5,7 @@ use std::collections::HashSet;
 use std::path::PathBuf;
 
 use assert_cmd::Command;
-use stackwise::analysis::compare::{band_figures, compare, compare_csv, difference};
+use stackwise::analysis::compare::{band_figures, compare, difference};
 use stackwise::analysis::measured::{
     MeasuredCurve, MeasuredError, ValueScale, parse_measured_csv, rms_difference,
 };
@@ -538,7 +538,9 @@ fn band_figures_match_a_plain_loop_over_the_engine_arrays() {
     let other = computed(AR, 380.0, 900.0, 1.3, 10.0);
     let table = compare(&[("sp", &s), ("ar", &other)], from, to).expect("table");
     assert_eq!(table[0].1, f, "first row is the same figures");
-    let csv = compare_csv(&table);
+    let mut csv = Vec::new();
+    stackwise::export::csv::write_compare(&mut csv, &table).unwrap();
+    let csv = String::from_utf8(csv).unwrap();
     assert_eq!(csv.lines().count(), 3, "header + two designs");
     assert!(
         csv.lines().nth(2).expect("row").starts_with("ar,450,780,"),

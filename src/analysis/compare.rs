@@ -13,8 +13,6 @@
 //! # Ok::<(), stackwise::analysis::compare::CompareError>(())
 //! ```
 
-use std::fmt::Write as _;
-
 use super::Spectrum;
 use super::measured::interpolate;
 use crate::design::{Pol, Quantity};
@@ -164,44 +162,6 @@ pub fn compare(
         .iter()
         .map(|(name, s)| band_figures(s, from_nm, to_nm).map(|f| ((*name).to_owned(), f)))
         .collect()
-}
-
-/// The compare table as CSV: one row per design,
-/// `design,from_nm,to_nm,points,R_mean,R_min,R_min_nm,R_max,R_max_nm,T_mean,T_min,T_min_nm,T_max,T_max_nm`
-/// (fractions, full precision).
-#[must_use]
-pub fn compare_csv(rows: &[(String, Figures)]) -> String {
-    let mut out = String::from(
-        "design,from_nm,to_nm,points,R_mean,R_min,R_min_nm,R_max,R_max_nm,\
-         T_mean,T_min,T_min_nm,T_max,T_max_nm\n",
-    );
-    for (name, f) in rows {
-        let name = if name.contains([',', '"', '\n', '\r']) {
-            format!("\"{}\"", name.replace('"', "\"\""))
-        } else {
-            name.clone()
-        };
-        // Writing to a String cannot fail.
-        writeln!(
-            out,
-            "{name},{},{},{},{},{},{},{},{},{},{},{},{},{}",
-            f.from_nm,
-            f.to_nm,
-            f.points,
-            f.r.mean,
-            f.r.min,
-            f.r.min_at_nm,
-            f.r.max,
-            f.r.max_at_nm,
-            f.t.mean,
-            f.t.min,
-            f.t.min_at_nm,
-            f.t.max,
-            f.t.max_at_nm
-        )
-        .ok();
-    }
-    out
 }
 
 /// `a − b` for R, T and A (mean of s and p) on a shared grid.

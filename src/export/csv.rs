@@ -3,6 +3,7 @@
 
 use std::io::{self, Write};
 
+use crate::analysis::compare::Figures;
 use crate::analysis::{AngleScan, COLUMN_NAMES, Curves, Spectrum};
 
 fn write_rows(mut w: impl Write, x_name: &str, x: &[f64], curves: &Curves) -> io::Result<()> {
@@ -63,4 +64,37 @@ pub fn field(s: &str) -> String {
     } else {
         s.to_owned()
     }
+}
+
+/// The compare table: one row per design,
+/// `design,from_nm,to_nm,points,R_mean,R_min,R_min_nm,R_max,R_max_nm,T_mean,T_min,T_min_nm,T_max,T_max_nm`
+/// (fractions and nm, full precision).
+pub fn write_compare(mut w: impl Write, rows: &[(String, Figures)]) -> io::Result<()> {
+    writeln!(
+        w,
+        "design,from_nm,to_nm,points,R_mean,R_min,R_min_nm,R_max,R_max_nm,\
+         T_mean,T_min,T_min_nm,T_max,T_max_nm"
+    )?;
+    for (name, f) in rows {
+        let (r, t) = (&f.r, &f.t);
+        writeln!(
+            w,
+            "{},{},{},{},{},{},{},{},{},{},{},{},{},{}",
+            field(name),
+            f.from_nm,
+            f.to_nm,
+            f.points,
+            r.mean,
+            r.min,
+            r.min_at_nm,
+            r.max,
+            r.max_at_nm,
+            t.mean,
+            t.min,
+            t.min_at_nm,
+            t.max,
+            t.max_at_nm
+        )?;
+    }
+    w.flush()
 }
