@@ -139,10 +139,7 @@ impl LayerReport {
     /// written in full (round-trip) precision.
     #[must_use]
     pub fn to_csv(&self) -> String {
-        let mut s = String::new();
-        // Writing to a String cannot fail.
-        self.write_csv(&mut s).ok();
-        s
+        render(|s| self.write_csv(s))
     }
 
     fn write_csv(&self, s: &mut String) -> fmt::Result {
@@ -184,10 +181,7 @@ impl LayerReport {
     /// Numbers are rounded for reading (nm to 0.01, QWOT to 0.0001).
     #[must_use]
     pub fn to_markdown(&self) -> String {
-        let mut s = String::new();
-        // Writing to a String cannot fail.
-        self.write_markdown(&mut s).ok();
-        s
+        render(|s| self.write_markdown(s))
     }
 
     fn write_markdown(&self, s: &mut String) -> fmt::Result {
@@ -243,10 +237,7 @@ impl LayerReport {
     /// same content as [`Self::to_markdown`].
     #[must_use]
     pub fn to_html(&self) -> String {
-        let mut s = String::new();
-        // Writing to a String cannot fail.
-        self.write_html(&mut s).ok();
-        s
+        render(|s| self.write_html(s))
     }
 
     fn write_html(&self, s: &mut String) -> fmt::Result {
@@ -352,6 +343,13 @@ fn html(s: &str) -> String {
         }
     }
     out
+}
+
+/// The text `write` produces (writing to a String cannot fail).
+fn render(write: impl FnOnce(&mut String) -> fmt::Result) -> String {
+    let mut s = String::new();
+    write(&mut s).ok();
+    s
 }
 
 #[cfg(test)]

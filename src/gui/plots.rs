@@ -451,7 +451,11 @@ fn refresh(
     cache.key = Some(key);
 }
 
-fn overlay_errors_ui(ui: &mut egui::Ui, overlays: &[Overlay<'_>]) {
+/// Why the active design's sweep, or an overlaid design's, could not be computed.
+fn errors_ui(ui: &mut egui::Ui, sweeps: &SweepCache, overlays: &[Overlay<'_>]) {
+    if let Some(Err(e)) = sweeps.result() {
+        ui.colored_label(ui.visuals().error_fg_color, format!("cannot compute: {e}"));
+    }
     for o in overlays {
         if let Some(Err(e)) = o.sweeps.result() {
             ui.colored_label(
@@ -503,10 +507,7 @@ pub fn spectrum_ui(
     if s.y_axis == YAxis::OpticalDensity {
         ui.colored_label(ui.visuals().warn_fg_color, OD_CAUTION);
     }
-    if let Some(Err(e)) = sweeps.result() {
-        ui.colored_label(ui.visuals().error_fg_color, format!("cannot compute: {e}"));
-    }
-    overlay_errors_ui(ui, overlays);
+    errors_ui(ui, sweeps, overlays);
     refresh(
         plot,
         sweeps,
@@ -570,10 +571,7 @@ pub fn angle_ui(
             "°",
         );
     });
-    if let Some(Err(e)) = sweeps.result() {
-        ui.colored_label(ui.visuals().error_fg_color, format!("cannot compute: {e}"));
-    }
-    overlay_errors_ui(ui, overlays);
+    errors_ui(ui, sweeps, overlays);
     refresh(
         plot,
         sweeps,
