@@ -1,4 +1,7 @@
 //! The command line: the same engine as the window, without a window.
+//!
+//! Each command beyond a few lines has its own file here (its `Args` struct and a `run`
+//! function); this file holds the parser, the shared argument types and the dispatch.
 
 use std::io::{self, Write};
 use std::path::{Path, PathBuf};
