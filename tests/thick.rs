@@ -33,11 +33,19 @@ struct Part<'a> {
 impl Part<'_> {
     fn solve(&self, wavelength_nm: f64, aoi_deg: f64, side: Side) -> Response {
         let materials: Vec<Complex64> = self.front.iter().chain(self.back).map(|l| l.0).collect();
-        let front: Vec<(usize, f64)> =
-            self.front.iter().enumerate().map(|(i, l)| (i, l.1)).collect();
+        let front: Vec<(usize, f64)> = self
+            .front
+            .iter()
+            .enumerate()
+            .map(|(i, l)| (i, l.1))
+            .collect();
         let n = self.front.len();
-        let back: Vec<(usize, f64)> =
-            self.back.iter().enumerate().map(|(i, l)| (n + i, l.1)).collect();
+        let back: Vec<(usize, f64)> = self
+            .back
+            .iter()
+            .enumerate()
+            .map(|(i, l)| (n + i, l.1))
+            .collect();
         let s = StackAt {
             incident: re(self.incident),
             substrate: self.substrate,
@@ -47,7 +55,13 @@ impl Part<'_> {
             back_layers: &back,
             substrate_mm: Some(self.mm),
         };
-        let one = solve(&s, wavelength_nm, aoi_deg.to_radians(), side, &mut Vec::new());
+        let one = solve(
+            &s,
+            wavelength_nm,
+            aoi_deg.to_radians(),
+            side,
+            &mut Vec::new(),
+        );
         // The four-lane solver must give the same numbers.
         let four = solve4(
             [&s; 4],
@@ -57,7 +71,12 @@ impl Part<'_> {
             &mut Scratch4::default(),
         );
         for f in four {
-            for (a, b) in [(one.r_s, f.r_s), (one.r_p, f.r_p), (one.t_s, f.t_s), (one.t_p, f.t_p)] {
+            for (a, b) in [
+                (one.r_s, f.r_s),
+                (one.r_p, f.r_p),
+                (one.t_s, f.t_s),
+                (one.t_p, f.t_p),
+            ] {
                 assert!((a - b).abs() < 1e-13, "solve4 {f:?} vs solve {one:?}");
             }
         }
@@ -68,7 +87,10 @@ impl Part<'_> {
 /// (R_s, T_s, R_p, T_p) to `eps`.
 fn check(r: &Response, want: [f64; 4], eps: f64, what: &str) {
     let got = [r.r_s, r.t_s, r.r_p, r.t_p];
-    for (name, (g, w)) in ["R_s", "T_s", "R_p", "T_p"].iter().zip(got.iter().zip(want)) {
+    for (name, (g, w)) in ["R_s", "T_s", "R_p", "T_p"]
+        .iter()
+        .zip(got.iter().zip(want))
+    {
         assert!(
             (g - w).abs() <= eps,
             "{what} {name}: got {g:.17} want {w:.17} (diff {:.2e})",
@@ -130,7 +152,12 @@ fn bare_absorbing_slab_matches_its_closed_form() {
             let want = bare_slab(n0.re, n, mm * 1e6, wl, aoi);
             for side in [Side::Front, Side::Back] {
                 let r = part.solve(wl, aoi, side);
-                check(&r, want, 1e-12, &format!("slab {n} {mm} mm {wl} nm {aoi}° {side:?}"));
+                check(
+                    &r,
+                    want,
+                    1e-12,
+                    &format!("slab {n} {mm} mm {wl} nm {aoi}° {side:?}"),
+                );
                 assert!((r.r_s + r.t_s + r.a_s - 1.0).abs() < 1e-14, "energy s");
             }
         }
@@ -141,9 +168,33 @@ fn bare_absorbing_slab_matches_its_closed_form() {
 fn bare_absorbing_slab_matches_the_incoherent_layer_method() {
     // tmm 0.2.0: inc_tmm(pol, [1, 4.0+0.001j, 1], [inf, 0.2e6, inf], ['i','i','i'], th, 5000.0)
     let table = [
-        (0.0, [0.416_645_174_726_534_3, 0.260_112_012_609_371_8, 0.416_645_174_726_534_3, 0.260_112_012_609_371_8]),
-        (45.0, [0.534_397_071_628_950_4, 0.174_678_781_731_275_66, 0.284_393_443_883_486_14, 0.359_214_308_565_071_8]),
-        (80.0, [0.846_477_027_974_678_9, 0.021_316_569_571_073_352, 0.036_383_914_587_461_73, 0.563_493_207_834_734_9]),
+        (
+            0.0,
+            [
+                0.416_645_174_726_534_3,
+                0.260_112_012_609_371_8,
+                0.416_645_174_726_534_3,
+                0.260_112_012_609_371_8,
+            ],
+        ),
+        (
+            45.0,
+            [
+                0.534_397_071_628_950_4,
+                0.174_678_781_731_275_66,
+                0.284_393_443_883_486_14,
+                0.359_214_308_565_071_8,
+            ],
+        ),
+        (
+            80.0,
+            [
+                0.846_477_027_974_678_9,
+                0.021_316_569_571_073_352,
+                0.036_383_914_587_461_73,
+                0.563_493_207_834_734_9,
+            ],
+        ),
     ];
     let part = Part {
         incident: 1.0,
@@ -154,7 +205,12 @@ fn bare_absorbing_slab_matches_the_incoherent_layer_method() {
         exit: 1.0,
     };
     for (aoi, want) in table {
-        check(&part.solve(5000.0, aoi, Side::Front), want, 1e-12, &format!("slab {aoi}°"));
+        check(
+            &part.solve(5000.0, aoi, Side::Front),
+            want,
+            1e-12,
+            &format!("slab {aoi}°"),
+        );
     }
 }
 
@@ -171,16 +227,80 @@ fn coated_absorbing_substrate_matches_the_incoherent_layer_method() {
     //   c = ['i','c','c','i','i']; front: inc_tmm(pol, n, d, c, th, 600.0);
     //   back: inc_tmm(pol, n[::-1], d[::-1], c[::-1], th, 600.0)
     let front = [
-        (0.0, [0.269_391_880_294_852_5, 0.245_963_589_148_402_08, 0.269_391_880_294_852_5, 0.245_963_589_148_402_08]),
-        (30.0, [0.325_677_123_035_905_57, 0.209_530_598_449_574_33, 0.209_999_846_754_097_75, 0.253_487_363_690_340_97]),
-        (60.0, [0.531_641_381_867_145_2, 0.108_063_299_216_473_35, 0.036_847_566_475_801_6, 0.268_042_889_690_662_4]),
-        (80.0, [0.804_554_183_978_123_5, 0.023_129_266_833_393_385, 0.131_242_084_937_112_26, 0.169_922_870_274_659_27]),
+        (
+            0.0,
+            [
+                0.269_391_880_294_852_5,
+                0.245_963_589_148_402_08,
+                0.269_391_880_294_852_5,
+                0.245_963_589_148_402_08,
+            ],
+        ),
+        (
+            30.0,
+            [
+                0.325_677_123_035_905_57,
+                0.209_530_598_449_574_33,
+                0.209_999_846_754_097_75,
+                0.253_487_363_690_340_97,
+            ],
+        ),
+        (
+            60.0,
+            [
+                0.531_641_381_867_145_2,
+                0.108_063_299_216_473_35,
+                0.036_847_566_475_801_6,
+                0.268_042_889_690_662_4,
+            ],
+        ),
+        (
+            80.0,
+            [
+                0.804_554_183_978_123_5,
+                0.023_129_266_833_393_385,
+                0.131_242_084_937_112_26,
+                0.169_922_870_274_659_27,
+            ],
+        ),
     ];
     let back = [
-        (0.0, [0.072_663_125_807_945_1, 0.245_963_589_148_402_27, 0.072_663_125_807_945_1, 0.245_963_589_148_402_27]),
-        (30.0, [0.092_163_533_444_306_11, 0.209_530_598_449_574_45, 0.048_502_623_651_094_014, 0.253_487_363_690_341_5]),
-        (60.0, [0.211_118_650_591_041_32, 0.108_063_299_216_473_31, 0.004_399_921_229_609_739, 0.268_042_889_690_662_3]),
-        (80.0, [0.557_193_343_503_384_1, 0.023_129_266_833_393_385, 0.239_984_415_353_142_55, 0.169_922_870_274_659_47]),
+        (
+            0.0,
+            [
+                0.072_663_125_807_945_1,
+                0.245_963_589_148_402_27,
+                0.072_663_125_807_945_1,
+                0.245_963_589_148_402_27,
+            ],
+        ),
+        (
+            30.0,
+            [
+                0.092_163_533_444_306_11,
+                0.209_530_598_449_574_45,
+                0.048_502_623_651_094_014,
+                0.253_487_363_690_341_5,
+            ],
+        ),
+        (
+            60.0,
+            [
+                0.211_118_650_591_041_32,
+                0.108_063_299_216_473_31,
+                0.004_399_921_229_609_739,
+                0.268_042_889_690_662_3,
+            ],
+        ),
+        (
+            80.0,
+            [
+                0.557_193_343_503_384_1,
+                0.023_129_266_833_393_385,
+                0.239_984_415_353_142_55,
+                0.169_922_870_274_659_47,
+            ],
+        ),
     ];
     let part = Part {
         incident: 1.0,
@@ -191,10 +311,20 @@ fn coated_absorbing_substrate_matches_the_incoherent_layer_method() {
         exit: 1.0,
     };
     for (aoi, want) in front {
-        check(&part.solve(600.0, aoi, Side::Front), want, 1e-12, &format!("front {aoi}°"));
+        check(
+            &part.solve(600.0, aoi, Side::Front),
+            want,
+            1e-12,
+            &format!("front {aoi}°"),
+        );
     }
     for (aoi, want) in back {
-        check(&part.solve(600.0, aoi, Side::Back), want, 1e-12, &format!("back {aoi}°"));
+        check(
+            &part.solve(600.0, aoi, Side::Back),
+            want,
+            1e-12,
+            &format!("back {aoi}°"),
+        );
     }
 }
 
@@ -206,15 +336,63 @@ fn both_faces_coated_match_the_incoherent_layer_method() {
     //   d = [inf, 70, 95, 1e6, 110, 60, inf]; c = ['i','c','c','i','c','c','i']
     //   front: inc_tmm(pol, n, d, c, th, 600.0); back: the lists reversed
     let front = [
-        (0.0, [0.284_384_963_865_611_46, 0.189_149_674_204_902_45, 0.284_384_963_865_611_46, 0.189_149_674_204_902_45]),
-        (45.0, [0.413_317_348_866_591_4, 0.119_880_359_437_126_67, 0.143_885_922_307_761_45, 0.219_893_592_937_092_85]),
-        (80.0, [0.804_331_219_522_240_2, 0.027_335_354_338_445_43, 0.122_527_079_340_227_73, 0.208_593_176_409_223_12]),
+        (
+            0.0,
+            [
+                0.284_384_963_865_611_46,
+                0.189_149_674_204_902_45,
+                0.284_384_963_865_611_46,
+                0.189_149_674_204_902_45,
+            ],
+        ),
+        (
+            45.0,
+            [
+                0.413_317_348_866_591_4,
+                0.119_880_359_437_126_67,
+                0.143_885_922_307_761_45,
+                0.219_893_592_937_092_85,
+            ],
+        ),
+        (
+            80.0,
+            [
+                0.804_331_219_522_240_2,
+                0.027_335_354_338_445_43,
+                0.122_527_079_340_227_73,
+                0.208_593_176_409_223_12,
+            ],
+        ),
     ];
     let back = [
-        (0.0, [0.285_695_262_626_336_43, 0.189_149_674_204_902_67, 0.285_695_262_626_336_43, 0.189_149_674_204_902_67]),
-        (45.0, [0.451_724_511_266_319_63, 0.052_646_058_581_213_33, 0.079_080_986_338_310_61, 0.241_133_610_121_677_4]),
+        (
+            0.0,
+            [
+                0.285_695_262_626_336_43,
+                0.189_149_674_204_902_67,
+                0.285_695_262_626_336_43,
+                0.189_149_674_204_902_67,
+            ],
+        ),
+        (
+            45.0,
+            [
+                0.451_724_511_266_319_63,
+                0.052_646_058_581_213_33,
+                0.079_080_986_338_310_61,
+                0.241_133_610_121_677_4,
+            ],
+        ),
         // 1.33 · sin 80° > 1: total internal reflection at the air side, T ≈ 0.
-        (80.0, [0.842_759_190_030_517_7, 2.699_934_008_381_71e-18, 0.252_099_009_045_451_46, 1.613_453_509_020_798e-17]),
+        (
+            80.0,
+            [
+                0.842_759_190_030_517_7,
+                2.699_934_008_381_71e-18,
+                0.252_099_009_045_451_46,
+                1.613_453_509_020_798e-17,
+            ],
+        ),
     ];
     let back_coating = [
         (Complex64::new(1.38, 0.0), 110.0),
@@ -229,10 +407,20 @@ fn both_faces_coated_match_the_incoherent_layer_method() {
         exit: 1.33,
     };
     for (aoi, want) in front {
-        check(&part.solve(600.0, aoi, Side::Front), want, 1e-12, &format!("front {aoi}°"));
+        check(
+            &part.solve(600.0, aoi, Side::Front),
+            want,
+            1e-12,
+            &format!("front {aoi}°"),
+        );
     }
     for (aoi, want) in back {
-        check(&part.solve(600.0, aoi, Side::Back), want, 1e-12, &format!("back {aoi}°"));
+        check(
+            &part.solve(600.0, aoi, Side::Back),
+            want,
+            1e-12,
+            &format!("back {aoi}°"),
+        );
     }
 }
 
@@ -253,7 +441,12 @@ fn a_back_coating_like_the_front_one_looks_the_same_from_both_sides() {
             for wl in [450.0, 600.0, 900.0] {
                 let f = part.solve(wl, aoi, Side::Front);
                 let b = part.solve(wl, aoi, Side::Back);
-                check(&b, [f.r_s, f.t_s, f.r_p, f.t_p], 1e-14, &format!("{wl} nm {aoi}°"));
+                check(
+                    &b,
+                    [f.r_s, f.t_s, f.r_p, f.t_p],
+                    1e-14,
+                    &format!("{wl} nm {aoi}°"),
+                );
             }
         }
     }
@@ -267,7 +460,10 @@ fn a_back_coating_like_the_front_one_looks_the_same_from_both_sides() {
         back: &[],
         exit: 1.0,
     };
-    let (f, b) = (bare.solve(600.0, 0.0, Side::Front), bare.solve(600.0, 0.0, Side::Back));
+    let (f, b) = (
+        bare.solve(600.0, 0.0, Side::Front),
+        bare.solve(600.0, 0.0, Side::Back),
+    );
     assert!((f.r() - b.r()).abs() > 1e-4, "{} vs {}", f.r(), b.r());
 }
 
@@ -336,12 +532,21 @@ fn zero_back_layers_change_nothing() {
     for side in [Side::Front, Side::Back] {
         for aoi in [0.0, 45.0] {
             let a = stackwise::analysis::spectrum(&old.resolve().unwrap(), &wl, aoi, side).unwrap();
-            let b = stackwise::analysis::spectrum(&empty.resolve().unwrap(), &wl, aoi, side).unwrap();
-            assert_eq!(format!("{:?}", a.curves), format!("{:?}", b.curves), "{side:?} {aoi}°");
+            let b =
+                stackwise::analysis::spectrum(&empty.resolve().unwrap(), &wl, aoi, side).unwrap();
+            assert_eq!(
+                format!("{:?}", a.curves),
+                format!("{:?}", b.curves),
+                "{side:?} {aoi}°"
+            );
         }
     }
     // Saving a design without back layers writes no back_layers field.
-    assert!(!stackwise::design::file::to_ron_string(&old).unwrap().contains("back_layers"));
+    assert!(
+        !stackwise::design::file::to_ron_string(&old)
+            .unwrap()
+            .contains("back_layers")
+    );
 }
 
 #[test]
@@ -350,13 +555,18 @@ fn back_layers_round_trip_and_count() {
         ron::from_str(&design_text(r#"back_layers: [(material: "L", nm: 94.0)],"#)).unwrap();
     d.validate().unwrap();
     let r = d.resolve().unwrap();
-    assert_eq!(r.back_layers, vec![(1, 94.0)], "the back layer shares the L material");
+    assert_eq!(
+        r.back_layers,
+        vec![(1, 94.0)],
+        "the back layer shares the L material"
+    );
     d.back_layers.push(Layer::new("H", Nm::new(10.0).unwrap()));
     let text = stackwise::design::file::to_ron_string(&d).unwrap();
     let again: Design = ron::from_str(&text).unwrap();
     assert_eq!(again, d, "round trip");
     // A back-only material is resolved too.
-    d.materials.push(Material::user("M", Model::Constant { n: 1.7, k: 0.0 }));
+    d.materials
+        .push(Material::user("M", Model::Constant { n: 1.7, k: 0.0 }));
     d.back_layers[0].material = "M".into();
     let r = d.resolve().unwrap();
     assert_eq!(r.materials.len(), 3, "H, L and M");
@@ -370,7 +580,11 @@ fn a_lossless_substrate_without_back_layers_gives_the_one_face_results_to_the_la
     // medium e): R = R_f + T_f² τ² R′/(1 − R_b R′ τ²), T = T_f τ T′/(…) from the front;
     // R = R′_e + T′_e² τ² R_b/(…), T = T′_e τ T_b/(…) from the back.
     use stackwise::optics::{Tilted, coherent};
-    let layers = [(re(1.46), 95.0), (re(2.1), 70.0), (Complex64::new(0.05, 3.0), 8.0)];
+    let layers = [
+        (re(1.46), 95.0),
+        (re(2.1), 70.0),
+        (Complex64::new(0.05, 3.0), 8.0),
+    ];
     let (n0, ns, ne) = (re(1.0), re(1.52), re(1.33));
     for (wl, aoi) in [(450.0, 0.0), (600.0, 30.0), (800.0, 60.0)] {
         for side in [Side::Front, Side::Back] {
@@ -417,9 +631,75 @@ fn a_lossless_substrate_without_back_layers_gives_the_one_face_results_to_the_la
                         )
                     }
                 };
-                assert_eq!(r.to_bits(), want_r.to_bits(), "R_{pol} {wl} nm {aoi}° {side:?}");
-                assert_eq!(tt.to_bits(), want_t.to_bits(), "T_{pol} {wl} nm {aoi}° {side:?}");
+                assert_eq!(
+                    r.to_bits(),
+                    want_r.to_bits(),
+                    "R_{pol} {wl} nm {aoi}° {side:?}"
+                );
+                assert_eq!(
+                    tt.to_bits(),
+                    want_t.to_bits(),
+                    "T_{pol} {wl} nm {aoi}° {side:?}"
+                );
             }
         }
     }
+}
+
+#[test]
+fn info_and_the_layer_report_list_both_faces() {
+    use stackwise::cli;
+    use stackwise::export::report::LayerReport;
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("window.ron");
+    let text =
+        design_text(r#"back_layers: [(material: "L", nm: 94.0), (material: "H", nm: 10.0)],"#);
+    std::fs::write(&path, &text).unwrap();
+    let (mut out, mut err) = (Vec::new(), Vec::new());
+    cli::run(cli::Command::Info { design: path }, &mut out, &mut err).unwrap();
+    let info = String::from_utf8(out).unwrap();
+    assert!(info.contains("2 layers, 154.000 nm in all"), "{info}");
+    assert!(
+        info.contains("back face") && info.contains("2 back layers, 104.000 nm in all"),
+        "{info}"
+    );
+    // Back layer 1, L (n = 1.46) 94 nm: QWOT 4·1.46·94/550 = 0.99811, optical 137.240 nm.
+    assert!(
+        info.contains("0.9981") && info.contains("137.240"),
+        "{info}"
+    );
+
+    let d: Design = ron::from_str(&text).unwrap();
+    let r = LayerReport::new(&d).unwrap();
+    assert_eq!(r.back_rows.len(), 2, "two back rows");
+    assert!(
+        (r.back_rows[0].qwot - 4.0 * 1.46 * 94.0 / 550.0).abs() < 1e-12,
+        "QWOT"
+    );
+    assert!((r.back_total_nm() - 104.0).abs() < 1e-12, "back total");
+    let csv = r.to_csv();
+    assert!(
+        csv.contains("\nback_layer,material,nm,qwot,optical_nm,cumulative_nm,locked\n1,L,94,"),
+        "{csv}"
+    );
+    assert!(
+        csv.trim_end()
+            .ends_with("2,H,10,0.15272727272727274,21,104,false"),
+        "{csv}"
+    );
+    let md = r.to_markdown();
+    assert!(
+        md.contains("## Back face") && md.contains("| Back layer | Material"),
+        "{md}"
+    );
+    let html = r.to_html();
+    assert!(
+        html.contains("<table class=\"back-layers\">") && html.ends_with("</html>\n"),
+        "{html}"
+    );
+
+    // Without back layers, no second table.
+    let bare: Design = ron::from_str(&design_text("")).unwrap();
+    let r = LayerReport::new(&bare).unwrap();
+    assert!(!r.to_csv().contains("back_layer") && !r.to_markdown().contains("Back face"));
 }

@@ -196,8 +196,7 @@ impl Design {
         let mut face = |layers: &[super::Layer], word: &str| {
             let mut out = Vec::with_capacity(layers.len());
             for (i, layer) in layers.iter().enumerate() {
-                let at = if let Some(at) = materials.iter().position(|m| m.name == layer.material)
-                {
+                let at = if let Some(at) = materials.iter().position(|m| m.name == layer.material) {
                     at
                 } else {
                     materials.push(lookup(

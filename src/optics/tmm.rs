@@ -158,14 +158,7 @@ pub fn coherent<'a>(
     let cos_ratio = (incident.q / incident.n) / (substrate.q / substrate.n);
     let scale2 = (-2.0 * log_scale).exp();
     let s = finish(incident.eta_s, bs, cs, substrate.eta_s, ONE, scale2);
-    let p = finish(
-        incident.eta_p,
-        bp,
-        cp,
-        substrate.eta_p,
-        cos_ratio,
-        scale2,
-    );
+    let p = finish(incident.eta_p, bp, cp, substrate.eta_p, cos_ratio, scale2);
     Coherent { s, p }
 }
 
