@@ -9,7 +9,7 @@
 
 use std::path::{Path, PathBuf};
 
-use crate::design::{Design, DesignError, DesignFileError, Layer, Nm, file};
+use crate::design::{Design, DesignError, DesignFileError, Face, Layer, Nm, file};
 use crate::material::{Catalog, Material, MaterialError};
 
 use super::history::History;
@@ -77,6 +77,10 @@ pub enum Command {
     SetReference(f64),
     /// Replaces all layers (e.g. built from stack notation).
     ReplaceLayers(Vec<Layer>),
+    /// A layer command (any of the above from `SetThickness` to `ReplaceLayers`) carried out
+    /// on the substrate's back face, `back_layers`, instead of the front coating; its layer
+    /// indices count from the substrate outward the same way. Needs a substrate thickness.
+    OnBackFace(Box<Command>),
     /// Renames the design.
     SetName(String),
     /// Adds a material to the design's own list.
@@ -105,6 +109,36 @@ pub enum Command {
     Save,
     /// Saves to a new file, which becomes the document's file.
     SaveAs(PathBuf),
+}
+
+impl Command {
+    /// `cmd` for the layers of `face`: as it is for the front, wrapped in
+    /// [`Command::OnBackFace`] for the back.
+    #[must_use]
+    pub fn on_face(face: Face, cmd: Command) -> Command {
+        match face {
+            Face::Front => cmd,
+            Face::Back => Command::OnBackFace(Box::new(cmd)),
+        }
+    }
+
+    /// Whether the command edits layers (and so can be carried out on either face).
+    #[must_use]
+    pub fn is_layer_edit(&self) -> bool {
+        matches!(
+            self,
+            Command::SetThickness { .. }
+                | Command::SetQwot { .. }
+                | Command::SetMaterial { .. }
+                | Command::InsertLayer { .. }
+                | Command::DuplicateLayer(_)
+                | Command::RemoveLayers(_)
+                | Command::MoveLayer { .. }
+                | Command::ScaleLayers { .. }
+                | Command::ToggleLock(_)
+                | Command::ReplaceLayers(_)
+        )
+    }
 }
 
 /// Why a command was refused.
@@ -152,6 +186,27 @@ pub enum CommandError {
     /// A refused change to the material list.
     #[error("{0}")]
     Materials(String),
+    /// The back face has a coating only on a substrate with a thickness.
+    #[error(
+        "the back face can only be coated on a substrate with a thickness; \
+         turn on \"back surface\" first"
+    )]
+    BackFaceNeedsThickness,
+    /// Making the substrate semi-infinite would drop the back face's layers.
+    #[error(
+        "the back face has {count} layer(s), which need a substrate thickness; \
+         delete them before making the substrate semi-infinite"
+    )]
+    BackLayersNeedThickness {
+        /// How many back layers there are.
+        count: usize,
+    },
+    /// Only layer edits can be aimed at the back face.
+    #[error("only layer edits can be carried out on the back face")]
+    NotALayerEdit,
+    /// A layer edit on the back face was refused.
+    #[error("back face: {0}")]
+    BackFace(Box<CommandError>),
 }
 
 /// The design being edited, where it lives, and its history.
@@ -306,6 +361,11 @@ impl Document {
                         v,
                     ));
                 }
+                if mm.is_none() && !self.design.back_layers.is_empty() {
+                    return Err(CommandError::BackLayersNeedThickness {
+                        count: self.design.back_layers.len(),
+                    });
+                }
                 self.design.substrate_mm = mm;
             }
             Command::SetReference(nm) => {
@@ -324,6 +384,7 @@ impl Document {
                 }
                 self.design.layers = layers;
             }
+            Command::OnBackFace(cmd) => self.apply_on_back_face(*cmd)?,
             Command::SetName(name) => self.design.name = name,
             Command::AddMaterial(m) => self.add_material(m)?,
             Command::ReplaceMaterial { old_name, material } => {
@@ -367,6 +428,23 @@ impl Document {
             }
         }
         Ok(())
+    }
+
+    /// A layer edit on `back_layers`: the two faces trade places for the edit, so every layer
+    /// command works on the back face as it does on the front.
+    fn apply_on_back_face(&mut self, cmd: Command) -> Result<(), CommandError> {
+        if !cmd.is_layer_edit() {
+            return Err(CommandError::NotALayerEdit);
+        }
+        if self.design.substrate_mm.is_none() {
+            return Err(CommandError::BackFaceNeedsThickness);
+        }
+        let d = &mut self.design;
+        std::mem::swap(&mut d.layers, &mut d.back_layers);
+        let result = self.apply_inner(cmd);
+        let d = &mut self.design;
+        std::mem::swap(&mut d.layers, &mut d.back_layers);
+        result.map_err(|e| CommandError::BackFace(Box::new(e)))
     }
 
     fn save_to(&mut self, path: &Path) -> Result<(), CommandError> {
@@ -512,6 +590,43 @@ mod tests {
 
     fn nms(d: &Document) -> Vec<f64> {
         d.design.layers.iter().map(|l| l.nm.get()).collect()
+    }
+
+    #[test]
+    fn layer_edits_reach_the_back_face() {
+        let mut d = doc();
+        let back = |cmd| Command::on_face(Face::Back, cmd);
+        let layer = Layer::new("L", Nm::new(90.0).unwrap());
+        let e = d
+            .apply(back(Command::InsertLayer {
+                at: 0,
+                layer: layer.clone(),
+            }))
+            .unwrap_err();
+        assert!(e.to_string().contains("turn on \"back surface\""), "{e}");
+        d.apply(Command::SetSubstrateMm(Some(2.0))).unwrap();
+        d.apply(back(Command::InsertLayer { at: 0, layer }))
+            .unwrap();
+        d.apply(back(Command::SetQwot {
+            layer: 0,
+            qwot: 1.0,
+        }))
+        .unwrap();
+        // A quarter wave of n = 1.5 at 550 nm: 550 / 6 nm.
+        assert!((d.design.back_layers[0].nm.get() - 550.0 / 6.0).abs() < 1e-9);
+        assert_eq!(nms(&d), [10.0, 20.0, 30.0], "the front is untouched");
+        let e = d.apply(back(Command::ToggleLock(1))).unwrap_err();
+        assert!(
+            e.to_string().starts_with("back face: there is no layer 2"),
+            "{e}"
+        );
+        let e = d.apply(back(Command::Undo)).unwrap_err();
+        assert!(e.to_string().contains("only layer edits"), "{e}");
+        let e = d.apply(Command::SetSubstrateMm(None)).unwrap_err();
+        assert!(e.to_string().contains("1 layer(s)"), "{e}");
+        assert_eq!(d.design.substrate_mm, Some(2.0), "refused");
+        d.apply(back(Command::RemoveLayers(vec![0]))).unwrap();
+        d.apply(Command::SetSubstrateMm(None)).unwrap();
     }
 
     #[test]

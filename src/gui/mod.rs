@@ -23,6 +23,7 @@ pub mod history;
 pub mod materials;
 pub mod measured;
 pub mod plots;
+mod section;
 pub mod stack;
 pub mod theme;
 
@@ -669,11 +670,13 @@ impl App {
     /// Writes the export chosen in the export window to `path`, as the Save dialog's answer
     /// does; the outcome shows in the export window (and errors in the status line).
     pub fn export_to(&mut self, path: &Path) -> Result<PathBuf, String> {
-        let doc = &self.designs[self.active_index()].doc;
+        let active = &self.designs[self.active_index()];
+        let doc = &active.doc;
         let inputs = handoff::ExportInputs {
             design: &doc.design,
             design_path: doc.path.as_deref(),
             view: &self.view,
+            colour_slot: theme::design_slot(active.colour),
         };
         let written = self.handoff.export_to(&inputs, path);
         if let Err(e) = &written {
@@ -1226,6 +1229,7 @@ impl App {
             design: &doc.design,
             design_path: doc.path.as_deref(),
             view: &self.view,
+            colour_slot: theme::design_slot(self.designs[i].colour),
         };
         let export = handoff::handoff_window(ctx, &mut self.handoff, &inputs);
         if let Some(handoff::HandoffAction::ChooseFile(req)) = export {
