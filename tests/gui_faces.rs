@@ -11,7 +11,7 @@ use egui_kittest::kittest::Queryable as _;
 use stackwise::analysis;
 use stackwise::design::Face;
 use stackwise::export::palette::DESIGN_COLOURS;
-use stackwise::gui::{App, Command, WindowCommand};
+use stackwise::gui::{App, Command, Edit, WindowCommand};
 use stackwise::optics::Side;
 
 fn harness(app: App) -> Harness<'static, App> {
@@ -24,7 +24,7 @@ fn harness(app: App) -> Harness<'static, App> {
 fn the_back_face_is_edited_from_the_stack_panel() {
     let mut app = App::new(None);
     app.force_inline = true;
-    assert!(app.apply(Command::SetSubstrateMm(None)), "semi-infinite");
+    assert!(app.apply(Edit::SetSubstrateMm(None)), "semi-infinite");
     let mut h = harness(app);
     h.run();
     // Without a thickness there is no back face to pick.
@@ -36,15 +36,15 @@ fn the_back_face_is_edited_from_the_stack_panel() {
         "back face needs a thickness"
     );
 
-    assert!(h.state_mut().apply(Command::SetSubstrateMm(Some(2.0))));
+    assert!(h.state_mut().apply(Edit::SetSubstrateMm(Some(2.0))));
     h.run();
-    let front = h.state().doc().design.layers.clone();
+    let front = h.state().doc().design().layers.clone();
     h.get_by_label("Back face").click();
     h.run();
     assert_eq!(h.state().stack.face, Face::Back, "switched");
     h.get_by_label("Add").click();
     h.run();
-    let d = h.state().doc().design.clone();
+    let d = h.state().doc().design().clone();
     assert_eq!(d.back_layers.len(), 1, "one back layer added");
     assert_eq!(d.layers, front, "the front coating is untouched");
     // The table now shows the back face: its one layer.
@@ -59,7 +59,7 @@ fn the_back_face_is_edited_from_the_stack_panel() {
     h.run();
     h.get_by_label("Build").click();
     h.run();
-    let d = h.state().doc().design.clone();
+    let d = h.state().doc().design().clone();
     assert_eq!(d.back_layers.len(), 3, "built on the back face");
     assert_eq!(d.layers, front, "the front coating is still untouched");
 
@@ -84,12 +84,9 @@ fn the_back_face_is_edited_from_the_stack_panel() {
     // Undo takes the build back; the substrate cannot lose its thickness while the back face
     // has layers.
     assert!(h.state_mut().apply(Command::Undo));
-    assert_eq!(h.state().doc().design.back_layers.len(), 1, "undone");
-    assert!(
-        !h.state_mut().apply(Command::SetSubstrateMm(None)),
-        "refused"
-    );
-    assert_eq!(h.state().doc().design.substrate_mm, Some(2.0), "kept");
+    assert_eq!(h.state().doc().design().back_layers.len(), 1, "undone");
+    assert!(!h.state_mut().apply(Edit::SetSubstrateMm(None)), "refused");
+    assert_eq!(h.state().doc().design().substrate_mm, Some(2.0), "kept");
 }
 
 /// The hex form (`#rrggbb`, lower case) of a colour.
@@ -119,8 +116,9 @@ fn each_design_exports_in_its_window_colour() {
         let c = h.state().designs[k].colour;
         let on_screen = (c.r(), c.g(), c.b());
         assert_eq!(on_screen, DESIGN_COLOURS[k], "design {k} on screen");
-        h.state_mut().handoff.kind =
-            stackwise::gui::handoff::ExportKind::Image(stackwise::gui::handoff::ImageFormat::Svg);
+        h.state_mut().export.kind = stackwise::gui::export_window::ExportKind::Image(
+            stackwise::gui::export_window::ImageFormat::Svg,
+        );
         let out = dir.path().join(format!("design{k}.svg"));
         h.state_mut().export_to(&out).unwrap();
         let svg = std::fs::read_to_string(&out).unwrap().to_lowercase();

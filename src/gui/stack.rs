@@ -1,6 +1,6 @@
 //! The left panel: the stack's cross-section, the layer table, the media and the notation box.
 //!
-//! Reads the design, pushes [`Command`]s; never mutates the design itself. The layer table,
+//! Reads the design, pushes [`Edit`]s; never mutates the design itself. The layer table,
 //! its buttons and the notation box edit one face of the substrate at a time (the front
 //! coating, or a thick substrate's back face); the cross-section shows both.
 
@@ -13,7 +13,7 @@ use crate::design::notation::build_layers;
 use crate::design::{Design, Face, Layer, Nm, nm_from_qwot};
 use crate::material::{Catalog, Material};
 
-use super::document::Command;
+use super::document::Edit;
 use super::{section, theme};
 
 /// Height of the cross-section strip and of the table's scroll area (points).
@@ -162,7 +162,7 @@ pub(super) fn colour_of(catalog: &Catalog<'_>, name: &str, reference_nm: f64) ->
 }
 
 /// The whole left panel.
-pub fn stack_ui(ui: &mut egui::Ui, design: &Design, state: &mut StackUi, out: &mut Vec<Command>) {
+pub fn stack_ui(ui: &mut egui::Ui, design: &Design, state: &mut StackUi, out: &mut Vec<Edit>) {
     if design.substrate_mm.is_none() && state.face == Face::Back {
         state.face = Face::Front;
         state.selected.clear();
@@ -188,7 +188,7 @@ pub fn stack_ui(ui: &mut egui::Ui, design: &Design, state: &mut StackUi, out: &m
         ui.separator();
         notation_ui(ui, &shown, &catalog, state, &mut edits);
     });
-    out.extend(edits.into_iter().map(|c| Command::on_face(face, c)));
+    out.extend(edits.into_iter().map(|c| Edit::on_face(face, c)));
 }
 
 /// The design with `face`'s layers in `layers` (the back face's layers count from the
@@ -230,7 +230,7 @@ fn face_switch_ui(ui: &mut egui::Ui, design: &Design, state: &mut StackUi) {
     }
 }
 
-fn design_row_ui(ui: &mut egui::Ui, design: &Design, out: &mut Vec<Command>) {
+fn design_row_ui(ui: &mut egui::Ui, design: &Design, out: &mut Vec<Edit>) {
     egui::Grid::new("design-row").num_columns(2).show(ui, |ui| {
         let l = ui.label("Name");
         let mut name = design.name.clone();
@@ -239,7 +239,7 @@ fn design_row_ui(ui: &mut egui::Ui, design: &Design, out: &mut Vec<Command>) {
             .labelled_by(l.id)
             .changed()
         {
-            out.push(Command::SetName(name));
+            out.push(Edit::SetName(name));
         }
         ui.end_row();
         let l = ui.label("Reference wavelength (nm)");
@@ -249,7 +249,7 @@ fn design_row_ui(ui: &mut egui::Ui, design: &Design, out: &mut Vec<Command>) {
             .labelled_by(l.id)
             .changed()
         {
-            out.push(Command::SetReference(r));
+            out.push(Edit::SetReference(r));
         }
         ui.end_row();
     });
@@ -260,7 +260,7 @@ fn media_ui(
     design: &Design,
     catalog: &Catalog<'_>,
     state: &mut StackUi,
-    out: &mut Vec<Command>,
+    out: &mut Vec<Edit>,
 ) {
     egui::Grid::new("media").num_columns(2).show(ui, |ui| {
         ui.label("Incident medium");
@@ -272,7 +272,7 @@ fn media_ui(
             catalog,
             &mut state.filter,
         ) {
-            out.push(Command::SetIncident(n));
+            out.push(Edit::SetIncident(n));
         }
         ui.end_row();
         ui.label("Substrate");
@@ -285,7 +285,7 @@ fn media_ui(
                 catalog,
                 &mut state.filter,
             ) {
-                out.push(Command::SetSubstrate(n));
+                out.push(Edit::SetSubstrate(n));
             }
             let mut back = design.substrate_mm.is_some();
             if ui
@@ -296,7 +296,7 @@ fn media_ui(
                 )
                 .changed()
             {
-                out.push(Command::SetSubstrateMm(back.then_some(1.0)));
+                out.push(Edit::SetSubstrateMm(back.then_some(1.0)));
             }
             if let Some(mut mm) = design.substrate_mm {
                 let r = ui
@@ -308,7 +308,7 @@ fn media_ui(
                     )
                     .accessible_name("Substrate thickness (mm)");
                 if r.changed() {
-                    out.push(Command::SetSubstrateMm(Some(mm)));
+                    out.push(Edit::SetSubstrateMm(Some(mm)));
                 }
             }
         });
@@ -322,7 +322,7 @@ fn media_ui(
             catalog,
             &mut state.filter,
         ) {
-            out.push(Command::SetExit(n));
+            out.push(Edit::SetExit(n));
         }
         ui.end_row();
     });
@@ -334,7 +334,7 @@ fn layer_table_ui(
     face: Face,
     catalog: &Catalog<'_>,
     state: &mut StackUi,
-    out: &mut Vec<Command>,
+    out: &mut Vec<Edit>,
 ) {
     let what = match face {
         Face::Front => "layers, outermost first",
@@ -374,7 +374,7 @@ fn layer_row_ui(
     design: &Design,
     catalog: &Catalog<'_>,
     state: &mut StackUi,
-    out: &mut Vec<Command>,
+    out: &mut Vec<Edit>,
     i: usize,
 ) {
     let layer = &design.layers[i];
@@ -389,7 +389,7 @@ fn layer_row_ui(
     if let Some(from) = r.dnd_release_payload::<usize>()
         && *from != i
     {
-        out.push(Command::MoveLayer { from: *from, to: i });
+        out.push(Edit::MoveLayer { from: *from, to: i });
     }
     if r.dnd_hover_payload::<usize>()
         .is_some_and(|from| *from != i)
@@ -421,7 +421,7 @@ fn layer_row_ui(
         catalog,
         &mut state.filter,
     ) {
-        out.push(Command::SetMaterial { layer: i, name: n });
+        out.push(Edit::SetMaterial { layer: i, name: n });
     }
     let mut nm = layer.nm.get();
     if ui
@@ -434,7 +434,7 @@ fn layer_row_ui(
         .accessible_name(format!("Layer {no} nm"))
         .changed()
     {
-        out.push(Command::SetThickness { layer: i, nm });
+        out.push(Edit::SetThickness { layer: i, nm });
     }
     match design.layer_qwot(no) {
         Ok(q) => {
@@ -449,7 +449,7 @@ fn layer_row_ui(
                 .accessible_name(format!("Layer {no} QWOT"))
                 .changed()
             {
-                out.push(Command::SetQwot { layer: i, qwot: q2 });
+                out.push(Edit::SetQwot { layer: i, qwot: q2 });
             }
         }
         Err(e) => {
@@ -464,7 +464,7 @@ fn layer_row_ui(
         .on_hover_text("locked layers are left alone by optimisation")
         .changed()
     {
-        out.push(Command::ToggleLock(i));
+        out.push(Edit::ToggleLock(i));
     }
 }
 
@@ -493,7 +493,7 @@ fn buttons_ui(
     design: &Design,
     catalog: &Catalog<'_>,
     state: &mut StackUi,
-    out: &mut Vec<Command>,
+    out: &mut Vec<Edit>,
 ) {
     let n = design.layers.len();
     let sel: Vec<usize> = state.selected.iter().copied().collect();
@@ -505,7 +505,7 @@ fn buttons_ui(
             .clicked()
         {
             let layer = new_layer(design, catalog, n.checked_sub(1));
-            out.push(Command::InsertLayer { at: n, layer });
+            out.push(Edit::InsertLayer { at: n, layer });
             state.selected = BTreeSet::from([n]);
             state.anchor = Some(n);
         }
@@ -516,7 +516,7 @@ fn buttons_ui(
             && let Some(&at) = sel.first()
         {
             let layer = new_layer(design, catalog, at.checked_sub(1));
-            out.push(Command::InsertLayer { at, layer });
+            out.push(Edit::InsertLayer { at, layer });
             state.selected = BTreeSet::from([at]);
             state.anchor = Some(at);
         }
@@ -525,11 +525,11 @@ fn buttons_ui(
             .clicked()
         {
             for &i in sel.iter().rev() {
-                out.push(Command::DuplicateLayer(i));
+                out.push(Edit::DuplicateLayer(i));
             }
         }
         if ui.add_enabled(any, egui::Button::new("Delete")).clicked() {
-            out.push(Command::RemoveLayers(sel.clone()));
+            out.push(Edit::RemoveLayers(sel.clone()));
             state.selected.clear();
             state.anchor = None;
         }
@@ -540,7 +540,7 @@ fn buttons_ui(
             .clicked()
         {
             for &i in sel.iter().rev() {
-                out.push(Command::MoveLayer { from: i, to: i + 1 });
+                out.push(Edit::MoveLayer { from: i, to: i + 1 });
             }
             state.selected = sel.iter().map(|i| i + 1).collect();
         }
@@ -551,7 +551,7 @@ fn buttons_ui(
             .clicked()
         {
             for &i in &sel {
-                out.push(Command::MoveLayer { from: i, to: i - 1 });
+                out.push(Edit::MoveLayer { from: i, to: i - 1 });
             }
             state.selected = sel.iter().map(|i| i - 1).collect();
         }
@@ -569,7 +569,7 @@ fn buttons_ui(
             )
             .labelled_by(l.id);
             if ui.button("Apply scale").clicked() {
-                out.push(Command::ScaleLayers {
+                out.push(Edit::ScaleLayers {
                     layers: sel.clone(),
                     factor: state.scale_factor,
                 });
@@ -587,7 +587,7 @@ fn notation_ui(
     design: &Design,
     catalog: &Catalog<'_>,
     state: &mut StackUi,
-    out: &mut Vec<Command>,
+    out: &mut Vec<Edit>,
 ) {
     ui.strong("Stack notation");
     ui.label(RichText::new("substrate side first; e.g. (HL)^4 H, 2L, L:85nm").weak());
@@ -609,7 +609,7 @@ fn notation_ui(
                 Ok(layers) => {
                     state.notation_error = None;
                     state.selected.clear();
-                    out.push(Command::ReplaceLayers(layers));
+                    out.push(Edit::ReplaceLayers(layers));
                 }
                 Err(e) => state.notation_error = Some(e.to_string()),
             }
