@@ -41,8 +41,8 @@ impl Face {
     /// medium and the substrate as exit, `inside` the other way round.
     ///
     /// Between two transparent media the transmittance is the same both ways (reciprocity);
-    /// with `lossless_substrate`, `t_in_out` is computed as `t_in²` (as it always was, so
-    /// results for lossless substrates stay the same to the last bit).
+    /// with `lossless_substrate`, `t_in_out` is computed as `t_in²`, so that a lossless
+    /// substrate gives the one-sided formula's numbers to the last bit.
     #[must_use]
     pub fn new(outside: &Amplitudes, inside: &Amplitudes, lossless_substrate: bool) -> Self {
         let (t_in, t_out) = (outside.transmittance, inside.transmittance);
