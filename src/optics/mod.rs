@@ -29,6 +29,7 @@
 //!   coherent sub-problems the substrate counts with its real index; its k acts through that
 //!   path loss only.
 
+pub mod field;
 mod lanes;
 pub mod thick;
 mod tmm;
