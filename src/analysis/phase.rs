@@ -19,23 +19,39 @@
 //!   long stacks) becomes about 1e-5 fs² of GDD noise at 800 nm, and the truncation error is
 //!   of relative order (τh)⁴/90, below 1e-7 for a group delay τ of 1000 fs.
 //!   Every stencil point is a full solve with every material's index evaluated at its own
-//!   wavelength, so **material dispersion is included**. (A tabulated material is linear
-//!   between its rows: its group delay jumps where the stencil crosses a row.)
+//!   wavelength, so **material dispersion is included**. A tabulated material is linear
+//!   between its rows, so its dn/dω jumps at every row; differenced as it is, each row would
+//!   show up as a spike of GDD. Its index at the stencil points is therefore taken from a
+//!   least-squares cubic in ω over ±[`FIT_HALF_WIDTH`]·ω (see `stencil_indices`), which
+//!   keeps the data's trend and smooths the kinks; formulas are evaluated exactly.
 //!
 //! The amplitudes are the coating's own (with a thick substrate: the coating on a
 //! semi-infinite substrate of the same real index; the incoherent back surface has no phase).
 
+use nalgebra::DMatrix;
 use num_complex::Complex64;
+use rayon::prelude::*;
 
-use super::{Spectrum, SweepError, Warning, spectrum};
+use super::media::check_point;
+use super::{SweepError, Warning};
 use crate::design::ResolvedDesign;
-use crate::optics::Side;
+use crate::material::{Material, MaterialError, Model};
+use crate::optics::{Response, Side, StackAt, solve};
 
 /// The speed of light in vacuum, nm/fs (exact, SI definition).
 pub const C_NM_PER_FS: f64 = 299.792_458;
 
 /// The finite-difference step in angular frequency, relative to ω.
 pub const RELATIVE_STEP: f64 = 3e-5;
+
+/// Half-width, relative to ω, of the window over which a tabulated material's index is
+/// smoothed by a cubic fit before differencing (±3 %: about ±24 nm at 800 nm). Narrower
+/// windows let the rounding of tabulated digits through (a 6-decimal table over ±1 % gives
+/// GDD errors of several percent); features of n narrower than the window are smoothed.
+pub const FIT_HALF_WIDTH: f64 = 0.03;
+
+/// Samples of a tabulated material in the smoothing window.
+pub const FIT_POINTS: usize = 17;
 
 /// Phase, group delay and GDD of one amplitude over wavelength.
 #[derive(Clone, Debug, Default, PartialEq)]
@@ -111,6 +127,59 @@ fn curve(stencil: &[Complex64], omega: &[f64]) -> PhaseCurve {
     }
 }
 
+/// Whether a material's index comes (partly) from a table, linear between its rows.
+fn is_tabulated(m: &Material) -> bool {
+    matches!(m.model, Model::Table { .. } | Model::WithK { .. })
+}
+
+/// The material's index at the five stencil frequencies around `omega` (rad/fs).
+///
+/// A formula is evaluated exactly. A table is linear between its rows, so its dn/dω jumps at
+/// every row and a second difference across a row would turn the kink into a spike of GDD;
+/// for tables the index is instead taken from a least-squares cubic in ω through
+/// [`FIT_POINTS`] samples spread over ±[`FIT_HALF_WIDTH`]·ω, which follows the data's trend
+/// and smooths the kinks (and the rounding of the tabulated digits).
+fn stencil_indices(m: &Material, omega: f64) -> Result<[Complex64; 5], MaterialError> {
+    let at = |w: f64| m.index_at(std::f64::consts::TAU * C_NM_PER_FS / w);
+    let h = RELATIVE_STEP * omega;
+    let mut out = [Complex64::new(0.0, 0.0); 5];
+    if !is_tabulated(m) {
+        for (slot, k) in out.iter_mut().zip(-2..=2) {
+            *slot = at(omega + h * f64::from(k))?;
+        }
+        return Ok(out);
+    }
+    let half = FIT_HALF_WIDTH * omega;
+    let last = (FIT_POINTS - 1) as f64;
+    let mut design_matrix = DMatrix::<f64>::zeros(FIT_POINTS, 4);
+    let mut values = DMatrix::<f64>::zeros(FIT_POINTS, 2);
+    for j in 0..FIT_POINTS {
+        let x = 2.0 * j as f64 / last - 1.0;
+        let n = at(omega + half * x)?;
+        for (p, v) in [1.0, x, x * x, x * x * x].into_iter().enumerate() {
+            design_matrix[(j, p)] = v;
+        }
+        values[(j, 0)] = n.re;
+        values[(j, 1)] = n.im;
+    }
+    // Least squares by the normal equations (4 × 4, well conditioned on x in −1…1).
+    let normal = design_matrix.transpose() * &design_matrix;
+    let rhs = design_matrix.transpose() * values;
+    let Some(c) = normal.lu().solve(&rhs) else {
+        // Cannot happen for distinct sample points; fall back to exact evaluation.
+        for (slot, k) in out.iter_mut().zip(-2..=2) {
+            *slot = at(omega + h * f64::from(k))?;
+        }
+        return Ok(out);
+    };
+    let coef: [Complex64; 4] = std::array::from_fn(|p| Complex64::new(c[(p, 0)], c[(p, 1)]));
+    for (slot, k) in out.iter_mut().zip(-2..=2) {
+        let x = h * f64::from(k) / half;
+        *slot = coef[0] + x * (coef[1] + x * (coef[2] + x * coef[3]));
+    }
+    Ok(out)
+}
+
 /// Phase, group delay and GDD of `d` at each of `wavelengths_nm` (any order, unwrapped in
 /// that order), at `aoi_deg` in the medium the light comes from.
 ///
@@ -134,29 +203,67 @@ pub fn phase_spectrum(
     aoi_deg: f64,
     side: Side,
 ) -> Result<PhaseSpectrum, SweepError> {
-    let mut omega = Vec::with_capacity(wavelengths_nm.len());
-    let mut stencil_nm = Vec::with_capacity(5 * wavelengths_nm.len());
     for &wl in wavelengths_nm {
-        if !(wl.is_finite() && wl > 0.0) {
-            return Err(SweepError::BadWavelength { wavelength_nm: wl });
-        }
-        let w = std::f64::consts::TAU * C_NM_PER_FS / wl;
-        omega.push(w);
-        for m in -2..=2 {
-            let wm = w * (1.0 + RELATIVE_STEP * f64::from(m));
-            stencil_nm.push(std::f64::consts::TAU * C_NM_PER_FS / wm);
+        check_point(wl, aoi_deg)?;
+    }
+    let omega: Vec<f64> = wavelengths_nm
+        .iter()
+        .map(|wl| std::f64::consts::TAU * C_NM_PER_FS / wl)
+        .collect();
+    let media: Vec<&Material> = d
+        .materials
+        .iter()
+        .chain([&d.incident, &d.substrate, &d.exit])
+        .collect();
+    let nm = d.materials.len();
+    let aoi = aoi_deg.to_radians();
+    // Five responses per wavelength, wavelengths in parallel.
+    let responses = omega
+        .par_iter()
+        .map_init(Vec::new, |scratch, &w| {
+            let table = media
+                .iter()
+                .map(|m| stencil_indices(m, w))
+                .collect::<Result<Vec<_>, _>>()?;
+            let mut five = [Response::default(); 5];
+            for (k, slot) in five.iter_mut().enumerate() {
+                let mats: Vec<Complex64> = table[..nm].iter().map(|t| t[k]).collect();
+                let stack = StackAt {
+                    incident: table[nm][k],
+                    substrate: table[nm + 1][k],
+                    exit: table[nm + 2][k],
+                    materials: &mats,
+                    layers: &d.layers,
+                    substrate_mm: d.substrate_mm,
+                };
+                let wm = w * (1.0 + RELATIVE_STEP * (k as f64 - 2.0));
+                let wl = std::f64::consts::TAU * C_NM_PER_FS / wm;
+                *slot = solve(&stack, wl, aoi, side, scratch);
+            }
+            Ok::<_, MaterialError>(five)
+        })
+        .collect::<Result<Vec<_>, _>>()?;
+    let column = |f: fn(&Response) -> Complex64| -> Vec<Complex64> {
+        responses.iter().flatten().map(f).collect()
+    };
+    let mut warnings: Vec<Warning> = Vec::new();
+    for m in &media {
+        if let Some(w) = m.range_warning(wavelengths_nm)
+            && !warnings
+                .iter()
+                .any(|o| matches!(o, Warning::Extrapolated(x) if x.material == w.material))
+        {
+            warnings.push(Warning::Extrapolated(w));
         }
     }
-    let s: Spectrum = spectrum(d, &stencil_nm, aoi_deg, side)?;
-    let c = &s.curves;
     Ok(PhaseSpectrum {
         wavelength_nm: wavelengths_nm.to_vec(),
         aoi_deg,
-        r_s: curve(&c.amp_r_s, &omega),
-        r_p: curve(&c.amp_r_p, &omega),
-        t_s: curve(&c.amp_t_s, &omega),
-        t_p: curve(&c.amp_t_p, &omega),
-        warnings: s.warnings,
+        r_s: curve(&column(|r| r.amp_r_s), &omega),
+        r_p: curve(&column(|r| r.amp_r_p), &omega),
+        t_s: curve(&column(|r| r.amp_t_s), &omega),
+        t_p: curve(&column(|r| r.amp_t_p), &omega),
+        warnings,
     })
 }
 
