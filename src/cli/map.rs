@@ -2,9 +2,9 @@
 
 use std::io::Write;
 use std::ops::ControlFlow;
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
-use anyhow::{Context as _, Result, bail};
+use anyhow::{Context as _, Result};
 use clap::Args;
 
 use super::{ImageKind, PolArg, QuantityArg, Range, emit, image_kind, load_design, report};
@@ -68,20 +68,6 @@ pub struct MapArgs {
     /// Image height in pixels.
     #[arg(long, default_value_t = 800)]
     pub height: u32,
-}
-
-/// Refuses an `--out` that names the design file itself (it would be overwritten).
-pub(super) fn refuse_input_as_output(out: Option<&Path>, design: &Path) -> Result<()> {
-    if let Some(out) = out
-        && let (Ok(a), Ok(b)) = (out.canonicalize(), design.canonicalize())
-        && a == b
-    {
-        bail!(
-            "--out {} is the design file itself; choose another name so the design is kept",
-            out.display()
-        );
-    }
-    Ok(())
 }
 
 /// `wavelength_nm,aoi_deg,value`, one row per point, angle by angle.

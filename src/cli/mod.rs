@@ -8,6 +8,7 @@ mod color;
 mod field;
 mod map;
 mod phase;
+mod views;
 
 pub use admittance::AdmittanceArgs;
 pub use color::ColorArgs;
@@ -508,34 +509,13 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
         | Command::Field(_)
         | Command::Admittance(_)
         | Command::Color(_)
-        | Command::Map(_)) => view(&cmd, stdout, stderr)?,
+        | Command::Map(_)) => views::run(&cmd, stdout, stderr)?,
         Command::Info { design } => {
             let d = load_design(&design)?;
             info(&d, stdout)?;
         }
     }
     Ok(())
-}
-
-/// The analysis views: phase, field, admittance, colour and map.
-fn view(cmd: &Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Result<()> {
-    let (design, out) = match cmd {
-        Command::Phase(a) => (&a.design, &a.out),
-        Command::Field(a) => (&a.design, &a.out),
-        Command::Admittance(a) => (&a.design, &a.out),
-        Command::Color(a) => (&a.design, &a.out),
-        Command::Map(a) => (&a.design, &a.out),
-        _ => return Ok(()),
-    };
-    map::refuse_input_as_output(out.as_deref(), design)?;
-    match cmd {
-        Command::Phase(a) => phase::run(a, stdout, stderr),
-        Command::Field(a) => field::run(a, stdout, stderr),
-        Command::Admittance(a) => admittance::run(a, stdout, stderr),
-        Command::Color(a) => color::run(a, stdout, stderr),
-        Command::Map(a) => map::run(a, stdout, stderr),
-        _ => Ok(()),
-    }
 }
 
 fn info(d: &Design, out: &mut dyn Write) -> Result<()> {

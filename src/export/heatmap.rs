@@ -143,7 +143,7 @@ impl HeatMapSpec {
     }
 }
 
-/// A heat map of a wavelength × angle map, in percent.
+/// A heat map of a wavelength × angle map, in percent on a fixed 0–100 % scale.
 #[must_use]
 pub fn map_heatmap(design_name: &str, m: &RtMap) -> HeatMapSpec {
     let q = match m.quantity {
@@ -164,7 +164,8 @@ pub fn map_heatmap(design_name: &str, m: &RtMap) -> HeatMapSpec {
         x: m.wavelength_nm.clone(),
         y: m.aoi_deg.clone(),
         values: m.values.iter().map(|v| 100.0 * v).collect(),
-        value_range: None,
+        // Fractions are bounded, so the whole 0–100 % scale keeps maps comparable.
+        value_range: Some((0.0, 100.0)),
         caution: None,
     }
 }
