@@ -16,10 +16,13 @@ pub mod map;
 pub mod measured;
 mod media;
 pub mod phase;
+mod plan;
 mod sweep;
 
 pub use media::ViewError;
-
+pub use plan::{
+    DEFAULT_STEPS, FULL_ANGLE_FROM_DEG, FULL_ANGLE_TO_DEG, Sweep, SweepData, run_sweep,
+};
 pub use sweep::{
     AngleScan, COLUMN_NAMES, Curves, PARALLEL_MIN_WORK, Spectrum, SweepError, Warning, angle_scan,
     angles_deg, spectrum, wavelengths_nm,
