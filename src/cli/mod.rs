@@ -3,6 +3,19 @@
 //! Each command beyond a few lines has its own file here (its `Args` struct and a `run`
 //! function); this file holds the parser, the shared argument types and the dispatch.
 
+mod admittance;
+mod color;
+mod field;
+mod map;
+mod phase;
+mod views;
+
+pub use admittance::AdmittanceArgs;
+pub use color::ColorArgs;
+pub use field::{FieldArgs, SpArg};
+pub use map::{AngleRange, MapArgs, parse_angles};
+pub use phase::PhaseArgs;
+
 use std::io::{self, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
@@ -300,6 +313,22 @@ pub enum Command {
     /// Figures of several designs over a band as CSV: mean, minimum and maximum of R and T
     /// (mean of s and p) and where each extreme lies.
     Compare(CompareArgs),
+    /// Phase (unwrapped, degrees), group delay (fs) and GDD (fs²) of r and t over wavelength
+    /// as CSV: wavelength_nm,phase_r_s_deg,phase_r_p_deg,phase_t_s_deg,phase_t_p_deg,
+    /// gd_r_s_fs,gd_r_p_fs,gdd_r_s_fs2,gdd_r_p_fs2.
+    Phase(PhaseArgs),
+    /// The electric-field intensity |E|² through the stack, relative to the incident wave, as
+    /// CSV: depth_nm,layer,e2 (depth from the incident side; layer 0 = substrate, N + 1 =
+    /// incident medium).
+    Field(FieldArgs),
+    /// The admittance locus at one wavelength as CSV: layer,re,im (layer 0 = the substrate's
+    /// admittance, last row N + 1 = the incident medium's).
+    Admittance(AdmittanceArgs),
+    /// The colour of reflected and transmitted light as CSV: light,X,Y,Z,x,y,L,a,b.
+    Color(ColorArgs),
+    /// R or T over wavelength × angle as CSV (wavelength_nm,aoi_deg,value), or a heat map
+    /// with --out FILE.png / FILE.svg.
+    Map(MapArgs),
     /// The layer table of a design: material, nm, QWOT and optical thickness.
     Info {
         /// The design file (.ron).
@@ -476,6 +505,11 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
         Command::Report(args) => report_cmd(&args, stdout)?,
         Command::Measured(args) => measured_cmd(&args, stdout, stderr)?,
         Command::Compare(args) => compare_cmd(&args, stdout, stderr)?,
+        cmd @ (Command::Phase(_)
+        | Command::Field(_)
+        | Command::Admittance(_)
+        | Command::Color(_)
+        | Command::Map(_)) => views::run(&cmd, stdout, stderr)?,
         Command::Info { design } => {
             let d = load_design(&design)?;
             info(&d, stdout)?;

@@ -54,11 +54,11 @@ pub const MAX_PIXELS: u64 = 32_000_000;
 pub const PALETTE: [(u8, u8, u8); 7] = super::palette::DESIGN_COLOURS;
 
 /// The font family name the embedded font is registered under.
-const FONT: &str = "sans-serif";
+pub(super) const FONT: &str = "sans-serif";
 
 const GRID_FINE: RGBColor = RGBColor(236, 236, 236);
 const GRID_MAIN: RGBColor = RGBColor(205, 205, 205);
-const CAUTION_TEXT: RGBColor = RGBColor(150, 30, 0);
+pub(super) const CAUTION_TEXT: RGBColor = RGBColor(150, 30, 0);
 
 /// How a series' line is drawn.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
@@ -150,7 +150,7 @@ fn checked(axis: &'static str, (from, to): (f64, f64)) -> Result<Range<f64>, Exp
     }
 }
 
-fn check_size(width_px: u32, height_px: u32) -> Result<(), ExportError> {
+pub(super) fn check_size(width_px: u32, height_px: u32) -> Result<(), ExportError> {
     for (what, value) in [("width", width_px), ("height", height_px)] {
         if !(MIN_SIDE_PX..=MAX_SIDE_PX).contains(&value) {
             return Err(ExportError::BadSize {
@@ -172,7 +172,7 @@ fn check_size(width_px: u32, height_px: u32) -> Result<(), ExportError> {
 }
 
 /// Registers the embedded font once per process.
-fn font_ready() -> Result<(), ExportError> {
+pub(super) fn font_ready() -> Result<(), ExportError> {
     static READY: OnceLock<bool> = OnceLock::new();
     let ok = *READY.get_or_init(|| {
         plotters::style::register_font(FONT, FontStyle::Normal, epaint_default_fonts::UBUNTU_LIGHT)
@@ -205,7 +205,7 @@ fn finite_runs(points: &[(f64, f64)]) -> Vec<Vec<(f64, f64)>> {
 }
 
 /// Greedy word wrap of `text` into lines no wider than `max_px` at `size` px.
-fn wrap<DB: DrawingBackend>(
+pub(super) fn wrap<DB: DrawingBackend>(
     area: &DrawingArea<DB, Shift>,
     text: &str,
     size: f64,

@@ -36,6 +36,7 @@
 //! * **Back face.** Its coating is listed like the front one, from the substrate outward
 //!   (layer 1 touches the substrate). Light from the back meets the back face first.
 
+pub mod field;
 mod lanes;
 pub mod thick;
 mod tmm;
