@@ -234,6 +234,7 @@ pub fn phase_spectrum(
                     exit: table[nm + 2][k],
                     materials: &mats,
                     layers: &d.layers,
+                    back_layers: &d.back_layers,
                     substrate_mm: d.substrate_mm,
                 };
                 let wm = w * (1.0 + RELATIVE_STEP * (k as f64 - 2.0));
