@@ -19,8 +19,10 @@
 //! # Ok::<(), Box<dyn std::error::Error>>(())
 //! ```
 
+pub mod bounds;
 pub mod file;
 pub mod notation;
+pub mod output;
 mod target;
 mod thickness;
 mod validate;
