@@ -6,9 +6,11 @@
 //! hands back plain arrays ready to plot or write.
 
 pub mod compare;
+mod limits;
 pub mod measured;
 mod sweep;
 
+pub use limits::{MAX_WORK, check_work};
 pub use sweep::{
     AngleScan, COLUMN_NAMES, Curves, PARALLEL_MIN_WORK, Spectrum, SweepError, Warning, angle_scan,
     angles_deg, spectrum, wavelengths_nm,
