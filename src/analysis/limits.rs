@@ -104,18 +104,32 @@ mod tests {
         let e = check_finite(&rs, |i| 400.0 + i as f64, |_| 30.0)
             .unwrap_err()
             .to_string();
-        assert!(e.contains("T_p") && e.contains("403 nm") && e.contains("30°"), "{e}");
+        assert!(
+            e.contains("T_p") && e.contains("403 nm") && e.contains("30°"),
+            "{e}"
+        );
         rs[3].t_p = 0.0;
         rs[1].amp_r_s.im = f64::INFINITY;
-        let e = check_finite(&rs, |_| 550.0, |i| i as f64).unwrap_err().to_string();
-        assert!(e.contains("r_s") && e.contains("550 nm") && e.contains("1°"), "{e}");
+        let e = check_finite(&rs, |_| 550.0, |i| i as f64)
+            .unwrap_err()
+            .to_string();
+        assert!(
+            e.contains("r_s") && e.contains("550 nm") && e.contains("1°"),
+            "{e}"
+        );
     }
 
     #[test]
     fn work_is_layers_times_points_times_angles() {
-        assert!(check_work(0, 2_000_000, 1).is_ok(), "no layers: one unit a point");
+        assert!(
+            check_work(0, 2_000_000, 1).is_ok(),
+            "no layers: one unit a point"
+        );
         assert!(check_work(1000, 1000, 1000).is_ok(), "exactly the cap");
         let e = check_work(1000, 1001, 1000).unwrap_err().to_string();
-        assert!(e.contains("1000 layers × 1001 wavelengths × 1000 angles"), "{e}");
+        assert!(
+            e.contains("1000 layers × 1001 wavelengths × 1000 angles"),
+            "{e}"
+        );
     }
 }

@@ -633,6 +633,13 @@ fn measured_cmd(a: &MeasuredArgs, stdout: &mut dyn Write, stderr: &mut dyn Write
              check the wavelength unit"
         );
     };
+    if !rms.is_finite() {
+        bail!(
+            "the RMS difference of {} from the design is not a finite number; check the \
+             measured values",
+            measured.display()
+        );
+    }
     writeln!(
         stdout,
         "{q} (mean of s and p) at {aoi}°: RMS difference {:.4} percentage points over {n} points, {lo}–{hi} nm",

@@ -262,7 +262,10 @@ mod tests {
         std::os::unix::fs::symlink(&real, &link).unwrap();
         write_atomic(&link, b"new").unwrap();
         assert!(
-            fs::symlink_metadata(&link).unwrap().file_type().is_symlink(),
+            fs::symlink_metadata(&link)
+                .unwrap()
+                .file_type()
+                .is_symlink(),
             "link kept"
         );
         assert_eq!(fs::read(&real).unwrap(), b"new", "target replaced");

@@ -71,7 +71,9 @@ pub enum ExportError {
         max: u32,
     },
     /// Width × height too large to hold in memory comfortably.
-    #[error("a PNG of {width} × {height} px has more than {max} pixels; make it smaller or use SVG")]
+    #[error(
+        "a PNG of {width} × {height} px has more than {max} pixels; make it smaller or use SVG"
+    )]
     TooManyPixels {
         /// Width asked for.
         width: u32,

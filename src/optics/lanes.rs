@@ -52,7 +52,7 @@ fn renorm4(b: &mut Cx4, c: &mut Cx4, log_norm: &mut f64x4) {
     if !(m.simd_gt(f64x4::splat(BIG)) | m.simd_lt(f64x4::splat(SMALL))).any() {
         return;
     }
-    let f = m.to_array().map(renorm_factor);
+    let f = m.to_array().map(|m| renorm_factor(m).unwrap_or(1.0));
     let fv = f64x4::from(f);
     for x in [&mut b.re, &mut b.im, &mut c.re, &mut c.im] {
         *x *= fv;
@@ -155,7 +155,10 @@ pub(crate) fn coherent4<'a>(
     }
     renorm4(&mut bs, &mut cs, &mut norm_s);
     renorm4(&mut bp, &mut cp, &mut norm_p);
-    let (log_s, log_p) = ((log_scale + norm_s).to_array(), (log_scale + norm_p).to_array());
+    let (log_s, log_p) = (
+        (log_scale + norm_s).to_array(),
+        (log_scale + norm_p).to_array(),
+    );
     std::array::from_fn(|i| {
         let (inc, sub) = (incident[i], substrate[i]);
         let cos_ratio = (inc.q / inc.n) / (sub.q / sub.n);

@@ -22,22 +22,17 @@ pub(crate) const BIG: f64 = 1.606_938_044_258_990_3e60;
 /// Lower bound of the running [B; C] before rescaling (2^−200).
 pub(crate) const SMALL: f64 = 6.223_015_277_861_142e-61;
 
-/// The power of two that brings `m` (the largest component of [B; C]) back near 1, or 1 when
-/// `m` is inside [`SMALL`, `BIG`] (or not a usable number).
-pub(crate) fn renorm_factor(m: f64) -> f64 {
-    if m.is_finite() && (m > BIG || (m < SMALL && m > 0.0)) {
-        (-m.log2().floor()).exp2()
-    } else {
-        1.0
-    }
+/// The power of two that brings `m` (the largest component of [B; C]) back near 1, or `None`
+/// when `m` is inside [`SMALL`, `BIG`] (or not a usable number).
+pub(crate) fn renorm_factor(m: f64) -> Option<f64> {
+    (m.is_finite() && (m > BIG || (m < SMALL && m > 0.0))).then(|| (-m.log2().floor()).exp2())
 }
 
 /// Rescales [B; C] by an exact power of two when it has left [`SMALL`, `BIG`]; the natural
 /// logarithm of the factor taken out is added to `log_norm`.
 fn renorm(b: &mut Complex64, c: &mut Complex64, log_norm: &mut f64) {
     let m = b.re.abs().max(b.im.abs()).max(c.re.abs()).max(c.im.abs());
-    let f = renorm_factor(m);
-    if f != 1.0 {
+    if let Some(f) = renorm_factor(m) {
         *b *= f;
         *c *= f;
         *log_norm -= f.ln();
