@@ -8,9 +8,13 @@
 pub mod compare;
 mod limits;
 pub mod measured;
+mod plan;
 mod sweep;
 
 pub use limits::{MAX_WORK, check_work};
+pub use plan::{
+    DEFAULT_STEPS, FULL_ANGLE_FROM_DEG, FULL_ANGLE_TO_DEG, Sweep, SweepData, run_sweep,
+};
 pub use sweep::{
     AngleScan, COLUMN_NAMES, Curves, PARALLEL_MIN_WORK, Spectrum, SweepError, Warning, angle_scan,
     angles_deg, spectrum, wavelengths_nm,
