@@ -12,4 +12,5 @@ pub mod design;
 pub mod export;
 pub mod gui;
 pub mod material;
+pub mod number;
 pub mod optics;

@@ -12,6 +12,7 @@ pub mod admittance;
 pub mod color;
 pub mod compare;
 pub mod field;
+mod limits;
 pub mod map;
 pub mod measured;
 mod media;
@@ -19,6 +20,7 @@ pub mod phase;
 mod plan;
 mod sweep;
 
+pub use limits::{MAX_WORK, check_work};
 pub use media::ViewError;
 pub use plan::{
     DEFAULT_STEPS, FULL_ANGLE_FROM_DEG, FULL_ANGLE_TO_DEG, Sweep, SweepData, run_sweep,

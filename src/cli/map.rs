@@ -7,7 +7,8 @@ use std::path::PathBuf;
 use anyhow::{Context as _, Result};
 use clap::Args;
 
-use super::{ImageKind, PolArg, QuantityArg, Range, emit, image_kind, load_design, report};
+use super::{PolArg, QuantityArg, Range, emit, image_kind, load_design, report};
+use crate::export::plot::ImageFormat;
 use crate::analysis;
 use crate::analysis::map::{RtMap, rt_map};
 use crate::export;
@@ -112,8 +113,8 @@ pub fn run(a: &MapArgs, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resul
                 spec.caution = Some(export::SAFETY_CAUTION.to_owned());
             }
             let bytes = match kind {
-                ImageKind::Png => render_heatmap_png(&spec, a.width, a.height)?,
-                ImageKind::Svg => render_heatmap_svg(&spec, a.width, a.height)?.into_bytes(),
+                ImageFormat::Png => render_heatmap_png(&spec, a.width, a.height)?,
+                ImageFormat::Svg => render_heatmap_svg(&spec, a.width, a.height)?.into_bytes(),
             };
             export::write_atomic(path, &bytes)
                 .with_context(|| format!("cannot write {}", path.display()))?;

@@ -21,7 +21,7 @@ use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 use anyhow::{Context as _, Result, bail};
-use clap::{Args, Parser, Subcommand, ValueEnum};
+use clap::{Args, CommandFactory as _, FromArgMatches as _, Parser, Subcommand, ValueEnum};
 
 use crate::analysis::measured::{ValueScale, parse_measured_csv, rms_difference};
 use crate::analysis::{self, Warning};
@@ -30,6 +30,8 @@ use crate::export;
 use crate::material::import::WavelengthUnit;
 use crate::material::{Catalog, builtin};
 use crate::optics::Side;
+
+pub mod guard;
 
 /// Design and analyse optical thin-film coatings. With no command, opens the window.
 #[derive(Debug, Parser)]
@@ -337,11 +339,15 @@ pub enum Command {
 }
 
 /// Parses the process arguments and runs; `open_window` is called when no command is given.
+/// Before anything runs, a command's `--out` is checked against its inputs and the window's
+/// arguments against mistyped commands ([`guard`]).
 pub fn main(open_window: impl FnOnce(Vec<PathBuf>) -> Result<()>) -> ExitCode {
-    let cli = Cli::parse();
+    let matches = Cli::command().get_matches();
+    let cli = Cli::from_arg_matches(&matches).unwrap_or_else(|e| e.exit());
     let result = match cli.command {
-        None => open_window(cli.designs),
-        Some(cmd) => run(cmd, &mut io::stdout().lock(), &mut io::stderr().lock()),
+        None => guard::window_args(&cli.designs).and_then(|()| open_window(cli.designs)),
+        Some(cmd) => guard::outputs(&matches)
+            .and_then(|()| run(cmd, &mut io::stdout().lock(), &mut io::stderr().lock())),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,
@@ -567,22 +573,10 @@ fn info_table(out: &mut dyn Write, first: &str, rows: &[export::report::LayerRow
     Ok(())
 }
 
-/// The image format named by a file's extension.
-#[derive(Clone, Copy, PartialEq, Eq)]
-enum ImageKind {
-    Png,
-    Svg,
-}
-
-fn image_kind(path: &Path) -> Result<ImageKind> {
-    let ext = path
-        .extension()
-        .and_then(|e| e.to_str())
-        .map(str::to_ascii_lowercase);
-    match ext.as_deref() {
-        Some("png") => Ok(ImageKind::Png),
-        Some("svg") => Ok(ImageKind::Svg),
-        _ => bail!(
+fn image_kind(path: &Path) -> Result<export::plot::ImageFormat> {
+    match export::plot::ImageFormat::from_path(path) {
+        Some(k) => Ok(k),
+        None => bail!(
             "cannot tell the image format of {}: name the file .png or .svg",
             path.display()
         ),
@@ -591,6 +585,8 @@ fn image_kind(path: &Path) -> Result<ImageKind> {
 
 fn plot(a: &PlotArgs, stderr: &mut dyn Write) -> Result<()> {
     let kind = image_kind(&a.out)?;
+    // The size is checked before any sweep runs.
+    export::plot::check_size(kind, a.width, a.height)?;
     let first = load_design(&a.design)?;
     let wl = a
         .range
@@ -620,8 +616,8 @@ fn plot(a: &PlotArgs, stderr: &mut dyn Write) -> Result<()> {
     }
     let (w, h) = (a.width, a.height);
     let bytes = match kind {
-        ImageKind::Png => export::plot::render_png(&spec, w, h)?,
-        ImageKind::Svg => export::plot::render_svg(&spec, w, h)?.into_bytes(),
+        export::plot::ImageFormat::Png => export::plot::render_png(&spec, w, h)?,
+        export::plot::ImageFormat::Svg => export::plot::render_svg(&spec, w, h)?.into_bytes(),
     };
     export::write_atomic(&a.out, &bytes)
         .with_context(|| format!("cannot write {}", a.out.display()))?;
@@ -683,6 +679,13 @@ fn measured_cmd(a: &MeasuredArgs, stdout: &mut dyn Write, stderr: &mut dyn Write
              check the wavelength unit"
         );
     };
+    if !rms.is_finite() {
+        bail!(
+            "the RMS difference of {} from the design is not a finite number; check the \
+             measured values",
+            measured.display()
+        );
+    }
     writeln!(
         stdout,
         "{q} (mean of s and p) at {aoi}°: RMS difference {:.4} percentage points over {n} points, {lo}–{hi} nm",

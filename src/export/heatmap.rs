@@ -27,7 +27,7 @@ use plotters::coord::Shift;
 use plotters::prelude::*;
 
 use super::ExportError;
-use super::plot::{CAUTION_TEXT, FONT, check_size, font_ready, wrap};
+use super::plot::{CAUTION_TEXT, FONT, ImageFormat, check_size, font_ready, wrap};
 use crate::analysis::map::RtMap;
 use crate::design::{Pol, Quantity};
 
@@ -274,7 +274,7 @@ pub fn render_heatmap_png(
     width_px: u32,
     height_px: u32,
 ) -> Result<Vec<u8>, ExportError> {
-    check_size(width_px, height_px)?;
+    check_size(ImageFormat::Png, width_px, height_px)?;
     font_ready()?;
     spec.scale_range()?;
     let mut buf = vec![255_u8; width_px as usize * height_px as usize * 3];
@@ -296,7 +296,7 @@ pub fn render_heatmap_svg(
     width_px: u32,
     height_px: u32,
 ) -> Result<String, ExportError> {
-    check_size(width_px, height_px)?;
+    check_size(ImageFormat::Svg, width_px, height_px)?;
     font_ready()?;
     spec.scale_range()?;
     let mut svg = String::new();
