@@ -128,14 +128,16 @@ pub(super) fn check(d: &Design) -> Result<(), DesignError> {
     if let Some(mm) = d.substrate_mm {
         within("substrate_mm", mm, f64::MIN_POSITIVE, MAX_SUBSTRATE_MM).map_err(out)?;
     }
-    for (i, layer) in d.layers.iter().enumerate() {
-        within(
-            &format!("layer {} nm", i + 1),
-            layer.nm.get(),
-            0.0,
-            MAX_LAYER_NM,
-        )
-        .map_err(out)?;
+    for face in [super::Face::Front, super::Face::Back] {
+        for (i, layer) in d.face_layers(face).iter().enumerate() {
+            within(
+                &format!("{} {} nm", face.layer_word(), i + 1),
+                layer.nm.get(),
+                0.0,
+                MAX_LAYER_NM,
+            )
+            .map_err(out)?;
+        }
     }
     for (i, m) in d.materials.iter().enumerate() {
         material(m).map_err(|what| DesignError::OutOfRange {
