@@ -13,3 +13,4 @@ pub mod export;
 pub mod gui;
 pub mod material;
 pub mod optics;
+pub mod optimize;

@@ -7,6 +7,8 @@ use std::io::{self, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
+pub mod optimize;
+
 use anyhow::{Context as _, Result, bail};
 use clap::{Args, Parser, Subcommand, ValueEnum};
 
@@ -300,6 +302,9 @@ pub enum Command {
     /// Figures of several designs over a band as CSV: mean, minimum and maximum of R and T
     /// (mean of s and p) and where each extreme lies.
     Compare(CompareArgs),
+    /// Refines the thicknesses (with --needle: inserts layers too) to meet the design's
+    /// targets; writes the new design to --out and the merit to standard output.
+    Optimize(optimize::OptimizeArgs),
     /// The layer table of a design: material, nm, QWOT and optical thickness.
     Info {
         /// The design file (.ron).
@@ -476,6 +481,7 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
         Command::Report(args) => report_cmd(&args, stdout)?,
         Command::Measured(args) => measured_cmd(&args, stdout, stderr)?,
         Command::Compare(args) => compare_cmd(&args, stdout, stderr)?,
+        Command::Optimize(args) => optimize::run(&args, stdout, stderr)?,
         Command::Info { design } => {
             let d = load_design(&design)?;
             info(&d, stdout)?;

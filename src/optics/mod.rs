@@ -29,10 +29,12 @@
 //!   coherent sub-problems the substrate counts with its real index; its k acts through that
 //!   path loss only.
 
+pub mod gradient;
 mod lanes;
 pub mod thick;
 mod tmm;
 
+pub use gradient::{Gradient, GradientScratch, solve_gradient};
 pub use thick::{ThickSides, combine_back, combine_front};
 pub use tmm::{Amplitudes, Coherent, Tilted, coherent};
 
