@@ -25,7 +25,10 @@ fn problem(layers: usize, aoi_deg: f64) -> (Evaluator, Vec<(usize, f64)>) {
             seed ^= seed >> 7;
             seed ^= seed << 17;
             let nm = 20.0 + (seed % 1500) as f64 / 10.0;
-            Layer::new(if i % 2 == 0 { "H" } else { "L" }, Nm::new(nm).expect("positive"))
+            Layer::new(
+                if i % 2 == 0 { "H" } else { "L" },
+                Nm::new(nm).expect("positive"),
+            )
         })
         .collect();
     d.targets = vec![Target {
@@ -53,9 +56,12 @@ fn bench(c: &mut Criterion) {
         g.bench_function(format!("layers={layers}/wl=301/aoi={aoi}"), |b| {
             b.iter(|| black_box(ev.merit_gradient(black_box(&l), &mut grad)));
         });
-        g.bench_function(format!("merit-only/layers={layers}/wl=301/aoi={aoi}"), |b| {
-            b.iter(|| black_box(ev.merit(black_box(&l))));
-        });
+        g.bench_function(
+            format!("merit-only/layers={layers}/wl=301/aoi={aoi}"),
+            |b| {
+                b.iter(|| black_box(ev.merit(black_box(&l))));
+            },
+        );
     }
     g.finish();
 }

@@ -14,6 +14,8 @@
 //! Prints merit versus time and layer count. Problem statements: physics-checks §3 of the
 //! project's reference notes.
 
+#![expect(clippy::print_stdout, reason = "a benchmark report for the terminal")]
+
 use std::ops::ControlFlow;
 use std::time::Instant;
 
@@ -65,10 +67,19 @@ fn run_needle(title: &str, d: &Design, opts: &Options) -> (f64, usize, f64) {
     (mean_r, out.design.layers.len(), secs)
 }
 
-fn ar_design(sub: (&str, f64), mats: [(&str, f64); 2], start: (&str, f64), band: (f64, f64, f64)) -> Design {
+fn ar_design(
+    sub: (&str, f64),
+    mats: [(&str, f64); 2],
+    start: (&str, f64),
+    band: (f64, f64, f64),
+) -> Design {
     let mut d = Design::new_empty("AR benchmark");
     d.substrate = sub.0.into();
-    d.materials = vec![constant(sub.0, sub.1), constant(mats[0].0, mats[0].1), constant(mats[1].0, mats[1].1)];
+    d.materials = vec![
+        constant(sub.0, sub.1),
+        constant(mats[0].0, mats[0].1),
+        constant(mats[1].0, mats[1].1),
+    ];
     if d.materials.iter().filter(|m| m.name == sub.0).count() > 1 {
         d.materials.remove(0);
     }
@@ -142,7 +153,13 @@ impl Splitter {
         let mut w = from;
         let mut scratch = Vec::new();
         while w <= to + 1e-9 {
-            let r = solve(&self.stack(), w, AOI.to_radians(), Side::Front, &mut scratch);
+            let r = solve(
+                &self.stack(),
+                w,
+                AOI.to_radians(),
+                Side::Front,
+                &mut scratch,
+            );
             let dphi_r = wrap_deg((r.amp_r_s / r.amp_r_p).arg().to_degrees());
             let dphi_t = wrap_deg((r.amp_t_s / r.amp_t_p).arg().to_degrees());
             if !(0.40..=0.60).contains(&r.r_s)
@@ -204,12 +221,12 @@ impl Splitter {
                         0 => g.d_r_s[k],
                         1 => g.d_r_p[k],
                         2 => g.d_r_s[k] - g.d_r_p[k],
-                        3 => {
-                            (g.d_amp_r_s[k] / r.amp_r_s - g.d_amp_r_p[k] / r.amp_r_p).im.to_degrees()
-                        }
-                        _ => {
-                            (g.d_amp_t_s[k] / r.amp_t_s - g.d_amp_t_p[k] / r.amp_t_p).im.to_degrees()
-                        }
+                        3 => (g.d_amp_r_s[k] / r.amp_r_s - g.d_amp_r_p[k] / r.amp_r_p)
+                            .im
+                            .to_degrees(),
+                        _ => (g.d_amp_t_s[k] / r.amp_t_s - g.d_amp_t_p[k] / r.amp_t_p)
+                            .im
+                            .to_degrees(),
                     };
                     jac[(5 * i + q, k)] = active * scale * d;
                 }

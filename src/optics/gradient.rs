@@ -179,8 +179,16 @@ fn pass(
     let eta0 = [incident.eta_s.re, incident.eta_p.re];
     let eta_sub = [substrate.eta_s, substrate.eta_p];
     let t_factor = [ONE, cos_ratio];
-    let amps: [Amplitudes; 2] =
-        std::array::from_fn(|pol| finish(eta0[pol], v[pol][0], v[pol][1], eta_sub[pol], t_factor[pol], scale2));
+    let amps: [Amplitudes; 2] = std::array::from_fn(|pol| {
+        finish(
+            eta0[pol],
+            v[pol][0],
+            v[pol][1],
+            eta_sub[pol],
+            t_factor[pol],
+            scale2,
+        )
+    });
     out.result = Coherent {
         s: amps[0],
         p: amps[1],
@@ -213,12 +221,8 @@ fn pass(
             out.dr[pol][k] = dr_factor * (w1[0] * x0 + w1[1] * x1);
             out.dd_rel[pol][k] = (w2[0] * x0 + w2[1] * x1) * inv_den;
             // w ← w·M_p
-            let step = |w: [Complex64; 2]| {
-                [
-                    w[0] * cd - w[1] * eta * is,
-                    -w[0] * is * inv + w[1] * cd,
-                ]
-            };
+            let step =
+                |w: [Complex64; 2]| [w[0] * cd - w[1] * eta * is, -w[0] * is * inv + w[1] * cd];
             w1 = step(w1);
             w2 = step(w2);
         }
@@ -261,7 +265,17 @@ pub fn solve_gradient(
     mats.clear();
     mats.extend(stack.materials.iter().map(|&n| Tilted::new(n, setup.snell)));
     let (fi, fs) = &setup.front;
-    pass(fi, fs, mats, stack.layers, false, k0, trig_buf, below, front);
+    pass(
+        fi,
+        fs,
+        mats,
+        stack.layers,
+        false,
+        k0,
+        trig_buf,
+        below,
+        front,
+    );
     let n = stack.layers.len();
     out.resize(n);
     let Some(substrate_mm) = stack.substrate_mm else {
@@ -272,7 +286,17 @@ pub fn solve_gradient(
         return;
     };
     let (bi, bs) = &setup.back;
-    pass(bi, bs, mats, stack.layers, true, k0, trig_buf, below, inside);
+    pass(
+        bi,
+        bs,
+        mats,
+        stack.layers,
+        true,
+        k0,
+        trig_buf,
+        below,
+        inside,
+    );
     out.response = setup.assemble(
         stack,
         wavelength_nm,
@@ -380,13 +404,7 @@ mod tests {
     }
 
     /// Central difference of every response quantity with respect to layer `k`.
-    fn central(
-        stack: &StackAt<'_>,
-        wl: f64,
-        aoi: f64,
-        k: usize,
-        h: f64,
-    ) -> [f64; 4] {
+    fn central(stack: &StackAt<'_>, wl: f64, aoi: f64, k: usize, h: f64) -> [f64; 4] {
         let mut layers = stack.layers.to_vec();
         let mut at = |dd: f64| {
             layers[k].1 = stack.layers[k].1 + dd;
@@ -456,7 +474,10 @@ mod tests {
                 }
             }
         }
-        assert!(checked > 200 && largest > 1e-3, "the check saw real derivatives");
+        assert!(
+            checked > 200 && largest > 1e-3,
+            "the check saw real derivatives"
+        );
     }
 
     /// The amplitude derivatives against central differences of the complex r and t.

@@ -49,15 +49,17 @@ fn candidates(
 ) -> Vec<Candidate> {
     let mut aug: Vec<(usize, f64)> = Vec::new();
     let mut meta: Vec<Option<(Place, usize)>> = Vec::new();
-    let needles =
-        |aug: &mut Vec<(usize, f64)>, meta: &mut Vec<Option<(Place, usize)>>, place, skip: &[usize]| {
-            for &m in allowed {
-                if !skip.contains(&m) {
-                    aug.push((m, 0.0));
-                    meta.push(Some((place, m)));
-                }
+    let needles = |aug: &mut Vec<(usize, f64)>,
+                   meta: &mut Vec<Option<(Place, usize)>>,
+                   place,
+                   skip: &[usize]| {
+        for &m in allowed {
+            if !skip.contains(&m) {
+                aug.push((m, 0.0));
+                meta.push(Some((place, m)));
             }
-        };
+        }
+    };
     for (k, w) in layers.iter().enumerate() {
         let below: Vec<usize> = if k > 0 {
             vec![layers[k - 1].mat, w.mat]
@@ -106,13 +108,16 @@ fn candidates(
         &top,
     );
     let mut grad = Vec::new();
-    ev.merit_gradient(&aug, &mut grad);
+    let merit = ev.merit_gradient(&aug, &mut grad);
+    // Values this close to zero are rounding, not a direction (MF² changes by < 1e-9 of
+    // itself per nm).
+    let threshold = -1e-9 * merit * merit;
     let mut out: Vec<Candidate> = meta
         .iter()
         .zip(&grad)
         .filter_map(|(m, &value)| {
             let (place, mat) = (*m)?;
-            (value < 0.0).then_some(Candidate { value, place, mat })
+            (value < threshold).then_some(Candidate { value, place, mat })
         })
         .collect();
     out.sort_by(|a, b| a.value.total_cmp(&b.value));
@@ -155,6 +160,31 @@ fn tidy(layers: &[Work], min_nm: f64) -> Vec<Work> {
         }
     }
     out
+}
+
+/// Consecutive growth steps without a new best before the search gives up.
+const MAX_GROWTHS: usize = 3;
+
+/// Reports a new best design; returns whether the callback asked to stop.
+fn report_best(
+    on_progress: &mut dyn FnMut(&Progress<'_>) -> ControlFlow<()>,
+    ev: &Evaluator,
+    design: &Design,
+    best: &[Work],
+    merit: f64,
+    insertions: usize,
+    iterations: usize,
+) -> bool {
+    let shown = to_design(ev, design, best);
+    on_progress(&Progress {
+        stage: Stage::Needle,
+        iteration: iterations,
+        insertions,
+        merit,
+        layers: best.len(),
+        best: &shown,
+    })
+    .is_break()
 }
 
 /// What the reporting refinement needs.
@@ -237,10 +267,7 @@ pub fn needle(
         options.materials.clone()
     };
     let ev = Evaluator::new(design, &names)?;
-    let allowed: Vec<usize> = names
-        .iter()
-        .filter_map(|n| ev.palette_index(n))
-        .collect();
+    let allowed: Vec<usize> = names.iter().filter_map(|n| ev.palette_index(n)).collect();
     let start = work_layers(&ev, design);
     check_free(&start, options.min_nm)?;
     let start_merit = ev.merit(&ev.layers_of(design));
@@ -263,6 +290,9 @@ pub fn needle(
     evaluations += first.evaluations;
     current = first.layers;
     merit = first.merit;
+    let mut best = current.clone();
+    let mut best_merit = merit;
+    let mut growths = 0;
     reason = stop_reason(first.end);
     if reason == StopReason::Cancelled {
         cancelled = true;
@@ -304,7 +334,15 @@ pub fn needle(
                 continue;
             }
             // Let every layer shrink to nothing, drop what vanished, refine within bounds.
-            let loose = ctx.refine(on_progress, &trial, 0.0, &current, merit, insertions, iterations);
+            let loose = ctx.refine(
+                on_progress,
+                &trial,
+                0.0,
+                &current,
+                merit,
+                insertions,
+                iterations,
+            );
             iterations += loose.iterations;
             evaluations += loose.evaluations;
             if loose.end == super::lsq::End::Cancelled {
@@ -340,18 +378,19 @@ pub fn needle(
                 merit = r.merit;
                 insertions += 1;
                 accepted = true;
-                let shown = to_design(&ev, design, &current);
-                if on_progress(&Progress {
-                    stage: Stage::Needle,
-                    iteration: iterations,
-                    insertions,
-                    merit,
-                    layers: current.len(),
-                    best: &shown,
-                })
-                .is_break()
-                {
-                    cancelled = true;
+                if merit < best_merit {
+                    best.clone_from(&current);
+                    best_merit = merit;
+                    growths = 0;
+                    cancelled |= report_best(
+                        on_progress,
+                        &ev,
+                        design,
+                        &best,
+                        best_merit,
+                        insertions,
+                        iterations,
+                    );
                 }
                 break;
             }
@@ -360,16 +399,98 @@ pub fn needle(
                 break;
             }
         }
-        if !accepted {
+        if accepted || cancelled {
+            continue;
+        }
+        // Gradual evolution: when no needle helps, thicken the design with a quarter wave
+        // (at the reference wavelength) of another allowed material on top and go on; the best
+        // design seen is what is returned, so this never makes the result worse.
+        if growths >= MAX_GROWTHS {
             break;
+        }
+        // Try a quarter wave of each allowed material at either end; keep the best.
+        let mut pick: Option<super::refine::Refined> = None;
+        for &m in &allowed {
+            for at in [0, current.len()] {
+                let neighbour = if at == 0 {
+                    current.first()
+                } else {
+                    current.last()
+                };
+                if neighbour.is_some_and(|w| w.mat == m) {
+                    continue;
+                }
+                let n = ev.palette()[m]
+                    .index_at(design.reference_nm)
+                    .map_or(1.5, |n| n.re);
+                let mut grown = current.clone();
+                grown.insert(
+                    at,
+                    Work {
+                        mat: m,
+                        nm: design.reference_nm / (4.0 * n),
+                        locked: false,
+                    },
+                );
+                if grown.len() > options.max_layers {
+                    continue;
+                }
+                let r = ctx.refine(
+                    on_progress,
+                    &grown,
+                    options.min_nm,
+                    &best,
+                    best_merit,
+                    insertions,
+                    iterations,
+                );
+                iterations += r.iterations;
+                evaluations += r.evaluations;
+                if r.end == super::lsq::End::Cancelled {
+                    cancelled = true;
+                }
+                if r.layers.iter().map(|w| w.nm).sum::<f64>() <= options.max_total_nm
+                    && pick.as_ref().is_none_or(|p| r.merit < p.merit)
+                {
+                    pick = Some(r);
+                }
+            }
+        }
+        if cancelled {
+            break;
+        }
+        let Some(r) = pick else {
+            reason = if current.len() + 1 > options.max_layers {
+                StopReason::LayerLimit
+            } else {
+                StopReason::ThicknessLimit
+            };
+            break;
+        };
+        growths += 1;
+        current = r.layers;
+        merit = r.merit;
+        if merit < best_merit {
+            best.clone_from(&current);
+            best_merit = merit;
+            growths = 0;
+            cancelled |= report_best(
+                on_progress,
+                &ev,
+                design,
+                &best,
+                best_merit,
+                insertions,
+                iterations,
+            );
         }
     }
     if cancelled {
         reason = StopReason::Cancelled;
     }
     Ok(Outcome {
-        design: to_design(&ev, design, &current),
-        merit,
+        design: to_design(&ev, design, &best),
+        merit: best_merit,
         start_merit,
         reason,
         iterations,

@@ -365,7 +365,10 @@ impl Evaluator {
 }
 
 fn groups_wavelengths(groups: &[Group]) -> Vec<(f64, f64)> {
-    groups.iter().map(|g| (g.wavelength_nm, g.aoi_rad)).collect()
+    groups
+        .iter()
+        .map(|g| (g.wavelength_nm, g.aoi_rad))
+        .collect()
 }
 
 /// The value a target reads from a response.
