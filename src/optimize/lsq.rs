@@ -273,7 +273,7 @@ pub fn minimize<'a, P: Residuals>(
             end = End::Zero;
             break;
         }
-        if !(s.best_norm < before * (1.0 - settings.tolerance)) {
+        if s.best_norm >= before * (1.0 - settings.tolerance) {
             break;
         }
         x.clone_from(&s.best);

@@ -232,6 +232,10 @@ impl Ctx<'_> {
 /// is never worse than the refined start. Stops when no insertion helps or at a limit
 /// (`max_layers`, `max_total_nm`, `max_insertions`). Locked layers stay as they are (no needle
 /// goes inside them).
+#[expect(
+    clippy::too_many_lines,
+    reason = "one loop: insertion trials, then growth, sharing the run's counters"
+)]
 pub fn needle(
     design: &Design,
     options: &Options,

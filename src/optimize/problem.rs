@@ -84,6 +84,10 @@ pub struct Evaluator {
 impl Evaluator {
     /// Precomputes `design`'s targets. `extra` names materials beyond those of the layers that
     /// layer lists may use (for needle insertion).
+    #[expect(
+        clippy::too_many_lines,
+        reason = "checks and tables built in one pass over targets"
+    )]
     pub fn new(design: &Design, extra: &[String]) -> Result<Self, OptimizeError> {
         let resolved = design.resolve()?;
         if design.targets.is_empty() {
@@ -134,27 +138,24 @@ impl Evaluator {
             let aoi_rad = t.aoi_deg.to_radians();
             let scale = (t.weight / total_weight).sqrt();
             for w in wls {
-                let row = match wavelengths.iter().position(|&x| x.to_bits() == w.to_bits()) {
-                    Some(r) => r,
-                    None => {
+                let row = wavelengths
+                    .iter()
+                    .position(|&x| x.to_bits() == w.to_bits())
+                    .unwrap_or_else(|| {
                         wavelengths.push(w);
                         wavelengths.len() - 1
-                    }
-                };
-                let group = match groups
+                    });
+                let group = groups
                     .iter()
                     .position(|g| g.row == row && g.aoi_rad.to_bits() == aoi_rad.to_bits())
-                {
-                    Some(g) => g,
-                    None => {
+                    .unwrap_or_else(|| {
                         groups.push(Group {
                             row,
                             wavelength_nm: w,
                             aoi_rad,
                         });
                         groups.len() - 1
-                    }
-                };
+                    });
                 points.push(Point {
                     group,
                     target: ti,

@@ -96,6 +96,9 @@ pub(crate) fn to_design(ev: &Evaluator, design: &Design, layers: &[Work]) -> Des
     d
 }
 
+/// A refinement's per-iteration report: (iteration, merit, best layers) → go on or stop.
+pub(crate) type StepFn<'a> = dyn FnMut(usize, f64, &[Work]) -> ControlFlow<()> + 'a;
+
 /// What one refinement of a working layer list found.
 pub(crate) struct Refined {
     pub layers: Vec<Work>,
@@ -112,7 +115,7 @@ pub(crate) fn refine_layers(
     layers: &[Work],
     min_nm: f64,
     max_iterations: usize,
-    on_step: &mut dyn FnMut(usize, f64, &[Work]) -> ControlFlow<()>,
+    on_step: &mut StepFn<'_>,
 ) -> Refined {
     let free: Vec<usize> = (0..layers.len()).filter(|&k| !layers[k].locked).collect();
     let x0: Vec<f64> = free.iter().map(|&k| layers[k].nm.max(min_nm)).collect();
