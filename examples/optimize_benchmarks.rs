@@ -139,6 +139,7 @@ impl Splitter {
             exit: Complex64::new(1.0, 0.0),
             materials: &self.mats,
             layers: &self.layers,
+            back_layers: &[],
             substrate_mm: None,
         }
     }

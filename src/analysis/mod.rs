@@ -7,8 +7,12 @@
 
 pub mod compare;
 pub mod measured;
+mod plan;
 mod sweep;
 
+pub use plan::{
+    DEFAULT_STEPS, FULL_ANGLE_FROM_DEG, FULL_ANGLE_TO_DEG, Sweep, SweepData, run_sweep,
+};
 pub use sweep::{
     AngleScan, COLUMN_NAMES, Curves, PARALLEL_MIN_WORK, Spectrum, SweepError, Warning, angle_scan,
     angles_deg, spectrum, wavelengths_nm,

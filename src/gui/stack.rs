@@ -1,25 +1,30 @@
 //! The left panel: the stack's cross-section, the layer table, the media and the notation box.
 //!
-//! Reads the design, pushes [`Command`]s; never mutates the design itself.
+//! Reads the design, pushes [`Edit`]s; never mutates the design itself. The layer table,
+//! its buttons and the notation box edit one face of the substrate at a time (the front
+//! coating, or a thick substrate's back face); the cross-section shows both.
 
+use std::borrow::Cow;
 use std::collections::{BTreeMap, BTreeSet};
 
-use egui::{Color32, DragValue, Pos2, Rect, RichText, Sense, Stroke, StrokeKind, Vec2};
+use egui::{Color32, DragValue, RichText};
 
 use crate::design::notation::build_layers;
-use crate::design::{Design, Layer, Nm, nm_from_qwot};
+use crate::design::{Design, Face, Layer, Nm, nm_from_qwot};
 use crate::material::{Catalog, Material};
 
-use super::document::Command;
-use super::theme;
+use super::document::Edit;
+use super::{section, theme};
 
 /// Height of the cross-section strip and of the table's scroll area (points).
-const STRIP_HEIGHT: f32 = 380.0;
+pub(super) const STRIP_HEIGHT: f32 = 380.0;
 
 /// Selection and the panel's own editing state (not part of the design).
 #[derive(Clone, Debug)]
 pub struct StackUi {
-    /// Selected layers, 0-based indices.
+    /// The face whose layers the table, buttons and notation box edit.
+    pub face: Face,
+    /// Selected layers of that face, 0-based indices.
     pub selected: BTreeSet<usize>,
     anchor: Option<usize>,
     /// The stack-notation text.
@@ -38,6 +43,7 @@ pub struct StackUi {
 impl Default for StackUi {
     fn default() -> Self {
         Self {
+            face: Face::Front,
             selected: BTreeSet::new(),
             anchor: None,
             notation: "(HL)^2".into(),
@@ -139,37 +145,92 @@ fn material_combo(
 }
 
 /// The index of `name` at the design's reference wavelength, as (n, k).
-fn nk_at_reference(catalog: &Catalog<'_>, name: &str, reference_nm: f64) -> Option<(f64, f64)> {
+pub(super) fn nk_at_reference(
+    catalog: &Catalog<'_>,
+    name: &str,
+    reference_nm: f64,
+) -> Option<(f64, f64)> {
     let m = catalog.get(name).ok()?;
     let n = m.index_at(reference_nm).ok()?;
     Some((n.re, n.im))
 }
 
-fn colour_of(catalog: &Catalog<'_>, name: &str, reference_nm: f64) -> Color32 {
+/// The cross-section colour of material `name`.
+pub(super) fn colour_of(catalog: &Catalog<'_>, name: &str, reference_nm: f64) -> Color32 {
     nk_at_reference(catalog, name, reference_nm)
         .map_or(theme::UNKNOWN, |(n, k)| theme::material_colour(n, k))
 }
 
 /// The whole left panel.
-pub fn stack_ui(ui: &mut egui::Ui, design: &Design, state: &mut StackUi, out: &mut Vec<Command>) {
-    state.clamp_selection(design.layers.len());
+pub fn stack_ui(ui: &mut egui::Ui, design: &Design, state: &mut StackUi, out: &mut Vec<Edit>) {
+    if design.substrate_mm.is_none() && state.face == Face::Back {
+        state.face = Face::Front;
+        state.selected.clear();
+    }
+    let face = state.face;
+    // The table, buttons and notation box see the chosen face's layers as `layers`; their
+    // commands are then aimed at that face.
+    let shown = face_view(design, face);
+    state.clamp_selection(shown.layers.len());
     let catalog = Catalog::new(&design.materials);
+    let mut edits = Vec::new();
     egui::ScrollArea::vertical().show(ui, |ui| {
         design_row_ui(ui, design, out);
         ui.separator();
         media_ui(ui, design, &catalog, state, out);
         ui.separator();
+        face_switch_ui(ui, design, state);
         ui.horizontal_top(|ui| {
-            cross_section_ui(ui, design, &catalog, state);
-            ui.vertical(|ui| layer_table_ui(ui, design, &catalog, state, out));
+            section::cross_section_ui(ui, design, &catalog, &state.selected, face);
+            ui.vertical(|ui| layer_table_ui(ui, &shown, face, &catalog, state, &mut edits));
         });
-        buttons_ui(ui, design, &catalog, state, out);
+        buttons_ui(ui, &shown, &catalog, state, &mut edits);
         ui.separator();
-        notation_ui(ui, design, &catalog, state, out);
+        notation_ui(ui, &shown, &catalog, state, &mut edits);
     });
+    out.extend(edits.into_iter().map(|c| Edit::on_face(face, c)));
 }
 
-fn design_row_ui(ui: &mut egui::Ui, design: &Design, out: &mut Vec<Command>) {
+/// The design with `face`'s layers in `layers` (the back face's layers count from the
+/// substrate outward, as the front's do).
+fn face_view(design: &Design, face: Face) -> Cow<'_, Design> {
+    match face {
+        Face::Front => Cow::Borrowed(design),
+        Face::Back => {
+            let mut d = design.clone();
+            std::mem::swap(&mut d.layers, &mut d.back_layers);
+            Cow::Owned(d)
+        }
+    }
+}
+
+/// The switch between the two faces; the back face only with a thick substrate.
+fn face_switch_ui(ui: &mut egui::Ui, design: &Design, state: &mut StackUi) {
+    let before = state.face;
+    ui.horizontal(|ui| {
+        ui.label("Coating on");
+        ui.selectable_value(&mut state.face, Face::Front, "Front face")
+            .on_hover_text("the coating towards the incident medium");
+        ui.add_enabled_ui(design.substrate_mm.is_some(), |ui| {
+            ui.selectable_value(&mut state.face, Face::Back, "Back face")
+                .on_hover_text(format!(
+                    "the coating on the substrate's back face, towards the exit medium \
+                     ({} layers); light from the back meets it first",
+                    design.back_layers.len()
+                ))
+                .on_disabled_hover_text(
+                    "turn on \"back surface\" to give the substrate a thickness: only then \
+                     has it a back face to coat",
+                );
+        });
+    });
+    if state.face != before {
+        state.selected.clear();
+        state.anchor = None;
+    }
+}
+
+fn design_row_ui(ui: &mut egui::Ui, design: &Design, out: &mut Vec<Edit>) {
     egui::Grid::new("design-row").num_columns(2).show(ui, |ui| {
         let l = ui.label("Name");
         let mut name = design.name.clone();
@@ -178,7 +239,7 @@ fn design_row_ui(ui: &mut egui::Ui, design: &Design, out: &mut Vec<Command>) {
             .labelled_by(l.id)
             .changed()
         {
-            out.push(Command::SetName(name));
+            out.push(Edit::SetName(name));
         }
         ui.end_row();
         let l = ui.label("Reference wavelength (nm)");
@@ -188,7 +249,7 @@ fn design_row_ui(ui: &mut egui::Ui, design: &Design, out: &mut Vec<Command>) {
             .labelled_by(l.id)
             .changed()
         {
-            out.push(Command::SetReference(r));
+            out.push(Edit::SetReference(r));
         }
         ui.end_row();
     });
@@ -199,7 +260,7 @@ fn media_ui(
     design: &Design,
     catalog: &Catalog<'_>,
     state: &mut StackUi,
-    out: &mut Vec<Command>,
+    out: &mut Vec<Edit>,
 ) {
     egui::Grid::new("media").num_columns(2).show(ui, |ui| {
         ui.label("Incident medium");
@@ -211,7 +272,7 @@ fn media_ui(
             catalog,
             &mut state.filter,
         ) {
-            out.push(Command::SetIncident(n));
+            out.push(Edit::SetIncident(n));
         }
         ui.end_row();
         ui.label("Substrate");
@@ -224,7 +285,7 @@ fn media_ui(
                 catalog,
                 &mut state.filter,
             ) {
-                out.push(Command::SetSubstrate(n));
+                out.push(Edit::SetSubstrate(n));
             }
             let mut back = design.substrate_mm.is_some();
             if ui
@@ -235,7 +296,7 @@ fn media_ui(
                 )
                 .changed()
             {
-                out.push(Command::SetSubstrateMm(back.then_some(1.0)));
+                out.push(Edit::SetSubstrateMm(back.then_some(1.0)));
             }
             if let Some(mut mm) = design.substrate_mm {
                 let r = ui
@@ -247,7 +308,7 @@ fn media_ui(
                     )
                     .accessible_name("Substrate thickness (mm)");
                 if r.changed() {
-                    out.push(Command::SetSubstrateMm(Some(mm)));
+                    out.push(Edit::SetSubstrateMm(Some(mm)));
                 }
             }
         });
@@ -261,107 +322,27 @@ fn media_ui(
             catalog,
             &mut state.filter,
         ) {
-            out.push(Command::SetExit(n));
+            out.push(Edit::SetExit(n));
         }
         ui.end_row();
     });
 }
 
-/// To-scale cross-section: incident medium on top with the light's direction, layers with
-/// heights proportional to thickness, the substrate at the bottom.
-fn cross_section_ui(ui: &mut egui::Ui, design: &Design, catalog: &Catalog<'_>, state: &StackUi) {
-    let (rect, response) = ui.allocate_exact_size(Vec2::new(64.0, STRIP_HEIGHT), Sense::hover());
-    let painter = ui.painter_at(rect);
-    let medium_h = 44.0;
-    let top = Rect::from_min_size(rect.min, Vec2::new(rect.width(), medium_h));
-    let bottom = Rect::from_min_max(Pos2::new(rect.min.x, rect.max.y - medium_h), rect.max);
-    let r = design.reference_nm;
-    let incident_c = colour_of(catalog, &design.incident, r);
-    painter.rect_filled(top, 0.0, incident_c.gamma_multiply(0.5));
-    // The light arrives from the incident medium, travelling down into the coating.
-    let x = top.center().x;
-    let arrow = Stroke::new(2.0, theme::text_on(incident_c.gamma_multiply(0.5)));
-    painter.arrow(
-        Pos2::new(x, top.min.y + 6.0),
-        Vec2::new(0.0, medium_h - 12.0),
-        arrow,
-    );
-    let sub_c = colour_of(catalog, &design.substrate, r);
-    painter.rect_filled(bottom, 0.0, sub_c);
-    painter.text(
-        bottom.center(),
-        egui::Align2::CENTER_CENTER,
-        "substrate",
-        egui::FontId::proportional(10.0),
-        theme::text_on(sub_c),
-    );
-    let stack = Rect::from_min_max(
-        Pos2::new(rect.min.x, top.max.y),
-        Pos2::new(rect.max.x, bottom.min.y),
-    );
-    let total = design.total_nm();
-    let n = design.layers.len();
-    let mut hovered = None;
-    let mut y = stack.max.y;
-    for (i, layer) in design.layers.iter().enumerate() {
-        let share = if total > 0.0 {
-            (layer.nm.get() / total) as f32
-        } else {
-            1.0 / n as f32
-        };
-        let h = stack.height() * share;
-        let band = Rect::from_min_max(Pos2::new(stack.min.x, y - h), Pos2::new(stack.max.x, y));
-        painter.rect_filled(band, 0.0, colour_of(catalog, &layer.material, r));
-        if state.selected.contains(&i) {
-            painter.rect_stroke(
-                band,
-                0.0,
-                Stroke::new(2.0, Color32::WHITE),
-                StrokeKind::Inside,
-            );
-        }
-        if let Some(p) = response.hover_pos()
-            && band.contains(p)
-        {
-            hovered = Some(i);
-        }
-        y -= h;
-    }
-    painter.rect_stroke(
-        rect,
-        0.0,
-        Stroke::new(1.0, Color32::GRAY),
-        StrokeKind::Inside,
-    );
-    if let Some(i) = hovered {
-        let l = &design.layers[i];
-        let nk = nk_at_reference(catalog, &l.material, r).map_or_else(String::new, |(n, k)| {
-            format!("\nn = {n:.4}, k = {k:.4} at {r} nm")
-        });
-        response.on_hover_text(format!(
-            "layer {}: {} {:.2} nm{nk}",
-            i + 1,
-            l.material,
-            l.nm.get()
-        ));
-    } else {
-        response.on_hover_text(format!(
-            "light from {} (top) onto the coating, {} layers, {:.1} nm in total, on {}",
-            design.incident, n, total, design.substrate
-        ));
-    }
-}
-
 fn layer_table_ui(
     ui: &mut egui::Ui,
     design: &Design,
+    face: Face,
     catalog: &Catalog<'_>,
     state: &mut StackUi,
-    out: &mut Vec<Command>,
+    out: &mut Vec<Edit>,
 ) {
+    let what = match face {
+        Face::Front => "layers, outermost first",
+        Face::Back => "back-face layers, outermost (exit side) first",
+    };
     ui.label(
         RichText::new(format!(
-            "{} layers, outermost first; drag a number to move a layer",
+            "{} {what}; drag a number to move a layer",
             design.layers.len()
         ))
         .weak(),
@@ -393,7 +374,7 @@ fn layer_row_ui(
     design: &Design,
     catalog: &Catalog<'_>,
     state: &mut StackUi,
-    out: &mut Vec<Command>,
+    out: &mut Vec<Edit>,
     i: usize,
 ) {
     let layer = &design.layers[i];
@@ -408,7 +389,7 @@ fn layer_row_ui(
     if let Some(from) = r.dnd_release_payload::<usize>()
         && *from != i
     {
-        out.push(Command::MoveLayer { from: *from, to: i });
+        out.push(Edit::MoveLayer { from: *from, to: i });
     }
     if r.dnd_hover_payload::<usize>()
         .is_some_and(|from| *from != i)
@@ -440,7 +421,7 @@ fn layer_row_ui(
         catalog,
         &mut state.filter,
     ) {
-        out.push(Command::SetMaterial { layer: i, name: n });
+        out.push(Edit::SetMaterial { layer: i, name: n });
     }
     let mut nm = layer.nm.get();
     if ui
@@ -453,7 +434,7 @@ fn layer_row_ui(
         .accessible_name(format!("Layer {no} nm"))
         .changed()
     {
-        out.push(Command::SetThickness { layer: i, nm });
+        out.push(Edit::SetThickness { layer: i, nm });
     }
     match design.layer_qwot(no) {
         Ok(q) => {
@@ -468,7 +449,7 @@ fn layer_row_ui(
                 .accessible_name(format!("Layer {no} QWOT"))
                 .changed()
             {
-                out.push(Command::SetQwot { layer: i, qwot: q2 });
+                out.push(Edit::SetQwot { layer: i, qwot: q2 });
             }
         }
         Err(e) => {
@@ -483,7 +464,7 @@ fn layer_row_ui(
         .on_hover_text("locked layers are left alone by optimisation")
         .changed()
     {
-        out.push(Command::ToggleLock(i));
+        out.push(Edit::ToggleLock(i));
     }
 }
 
@@ -512,7 +493,7 @@ fn buttons_ui(
     design: &Design,
     catalog: &Catalog<'_>,
     state: &mut StackUi,
-    out: &mut Vec<Command>,
+    out: &mut Vec<Edit>,
 ) {
     let n = design.layers.len();
     let sel: Vec<usize> = state.selected.iter().copied().collect();
@@ -524,7 +505,7 @@ fn buttons_ui(
             .clicked()
         {
             let layer = new_layer(design, catalog, n.checked_sub(1));
-            out.push(Command::InsertLayer { at: n, layer });
+            out.push(Edit::InsertLayer { at: n, layer });
             state.selected = BTreeSet::from([n]);
             state.anchor = Some(n);
         }
@@ -535,7 +516,7 @@ fn buttons_ui(
             && let Some(&at) = sel.first()
         {
             let layer = new_layer(design, catalog, at.checked_sub(1));
-            out.push(Command::InsertLayer { at, layer });
+            out.push(Edit::InsertLayer { at, layer });
             state.selected = BTreeSet::from([at]);
             state.anchor = Some(at);
         }
@@ -544,11 +525,11 @@ fn buttons_ui(
             .clicked()
         {
             for &i in sel.iter().rev() {
-                out.push(Command::DuplicateLayer(i));
+                out.push(Edit::DuplicateLayer(i));
             }
         }
         if ui.add_enabled(any, egui::Button::new("Delete")).clicked() {
-            out.push(Command::RemoveLayers(sel.clone()));
+            out.push(Edit::RemoveLayers(sel.clone()));
             state.selected.clear();
             state.anchor = None;
         }
@@ -559,7 +540,7 @@ fn buttons_ui(
             .clicked()
         {
             for &i in sel.iter().rev() {
-                out.push(Command::MoveLayer { from: i, to: i + 1 });
+                out.push(Edit::MoveLayer { from: i, to: i + 1 });
             }
             state.selected = sel.iter().map(|i| i + 1).collect();
         }
@@ -570,7 +551,7 @@ fn buttons_ui(
             .clicked()
         {
             for &i in &sel {
-                out.push(Command::MoveLayer { from: i, to: i - 1 });
+                out.push(Edit::MoveLayer { from: i, to: i - 1 });
             }
             state.selected = sel.iter().map(|i| i - 1).collect();
         }
@@ -588,7 +569,7 @@ fn buttons_ui(
             )
             .labelled_by(l.id);
             if ui.button("Apply scale").clicked() {
-                out.push(Command::ScaleLayers {
+                out.push(Edit::ScaleLayers {
                     layers: sel.clone(),
                     factor: state.scale_factor,
                 });
@@ -606,7 +587,7 @@ fn notation_ui(
     design: &Design,
     catalog: &Catalog<'_>,
     state: &mut StackUi,
-    out: &mut Vec<Command>,
+    out: &mut Vec<Edit>,
 ) {
     ui.strong("Stack notation");
     ui.label(RichText::new("substrate side first; e.g. (HL)^4 H, 2L, L:85nm").weak());
@@ -628,7 +609,7 @@ fn notation_ui(
                 Ok(layers) => {
                     state.notation_error = None;
                     state.selected.clear();
-                    out.push(Command::ReplaceLayers(layers));
+                    out.push(Edit::ReplaceLayers(layers));
                 }
                 Err(e) => state.notation_error = Some(e.to_string()),
             }

@@ -17,11 +17,12 @@
 //! Absorbing layers are scaled by e^(−|Im δ|) above 30 nepers exactly as the solver does; the
 //! formulas above are homogeneous of degree zero in the scale, so it cancels.
 //!
-//! A thick substrate adds a second coherent problem (the coating seen from inside the
-//! substrate, layers in reverse order) and the incoherent combination of [`super::thick`]:
-//! with D′ = 1 − R_b R′ τ², R = R_f + T_f² τ² R′/D′ and T = T_f τ T′/D′, whose partial
-//! derivatives with respect to R_f, T_f and R_b carry the layer derivatives through. The values
-//! themselves come from the same assembly as [`super::solve`].
+//! A thick substrate adds the coating seen from inside the substrate (layers in reverse order,
+//! the substrate's complex index as incident medium; the formulas above hold for a complex η₀)
+//! and the incoherent combination of [`super::thick`]: R = R₁ + T₁T₁′τ²R₂′/D′ and
+//! T = T₁τT₂′/D′ with D′ = 1 − R₁′R₂′τ², whose partial derivatives with respect to the front
+//! face's R₁, T₁, R₁′ and T₁′ carry the layer derivatives through (the back face does not
+//! depend on them). The values themselves come from the same assembly as [`super::solve`].
 //!
 //! Cost per wavelength: about three times one solve; nothing is allocated once the buffers in
 //! [`GradientScratch`] and [`Gradient`] have grown to the layer count.
@@ -176,7 +177,7 @@ fn pass(
     }
     let cos_ratio = (incident.q / incident.n) / (substrate.q / substrate.n);
     let scale2 = (-2.0 * log_scale).exp();
-    let eta0 = [incident.eta_s.re, incident.eta_p.re];
+    let eta0 = [incident.eta_s, incident.eta_p];
     let eta_sub = [substrate.eta_s, substrate.eta_p];
     let t_factor = [ONE, cos_ratio];
     let amps: [Amplitudes; 2] = std::array::from_fn(|pol| {
@@ -204,7 +205,7 @@ fn pass(
         let inv_den = den.inv();
         // Row vectors for dr (∝ [C, −B]) and for dD ([η₀, 1]), carried down the stack.
         let mut w1 = [c, -b];
-        let mut w2 = [Complex64::new(eta0[pol], 0.0), ONE];
+        let mut w2 = [eta0[pol], ONE];
         for p in (0..n).rev() {
             let (cd, is, kq) = trig_buf[p];
             let m = &mats[layers[at(p)].0];
@@ -239,7 +240,7 @@ fn pass(
 /// let stack = StackAt {
 ///     incident: Complex64::new(1.0, 0.0), substrate: Complex64::new(1.52, 0.0),
 ///     exit: Complex64::new(1.0, 0.0), materials: &[Complex64::new(1.38, 0.0)],
-///     layers: &[(0, 550.0 / (4.0 * 1.38))], substrate_mm: None,
+///     layers: &[(0, 550.0 / (4.0 * 1.38))], back_layers: &[], substrate_mm: None,
 /// };
 /// let (mut g, mut scratch) = (Gradient::default(), GradientScratch::default());
 /// solve_gradient(&stack, 550.0, 0.0, &mut scratch, &mut g);
@@ -264,74 +265,59 @@ pub fn solve_gradient(
     } = scratch;
     mats.clear();
     mats.extend(stack.materials.iter().map(|&n| Tilted::new(n, setup.snell)));
-    let (fi, fs) = &setup.front;
-    pass(
-        fi,
-        fs,
-        mats,
-        stack.layers,
-        false,
-        k0,
-        trig_buf,
-        below,
-        front,
-    );
+    let (fi, fs) = &setup.front_out;
+    pass(fi, fs, mats, stack.layers, false, k0, trig_buf, below, front);
     let n = stack.layers.len();
     out.resize(n);
     let Some(substrate_mm) = stack.substrate_mm else {
-        out.response = setup.assemble(stack, wavelength_nm, Side::Front, Some(front.result), None);
+        out.response = setup.assemble(
+            stack,
+            wavelength_nm,
+            Side::Front,
+            &[Some(front.result), None, None, None],
+        );
         for k in 0..n {
             fill(out, front, k, None);
         }
         return;
     };
-    let (bi, bs) = &setup.back;
-    pass(
-        bi,
-        bs,
-        mats,
-        stack.layers,
-        true,
-        k0,
-        trig_buf,
-        below,
-        inside,
+    let (bi, bs) = &setup.front_in;
+    pass(bi, bs, mats, stack.layers, true, k0, trig_buf, below, inside);
+    // The back face (its coating or the bare surface) seen from inside the substrate.
+    let (ci, cs) = &setup.back_in;
+    let back_in = coherent(
+        ci,
+        stack.back_layers.iter().rev().map(|&(m, d)| (&mats[m], d)),
+        cs,
+        wavelength_nm,
     );
     out.response = setup.assemble(
         stack,
         wavelength_nm,
         Side::Front,
-        Some(front.result),
-        Some(inside.result),
+        &[Some(front.result), Some(inside.result), Some(back_in), None],
     );
     // Partial derivatives of the incoherent combination (formulas in `thick`).
-    let snell = setup.snell;
-    let sub_real = Tilted::new(Complex64::new(stack.substrate.re, 0.0), snell);
-    let tau = thick::internal_transmittance(
-        Tilted::new(stack.substrate, snell).q,
-        substrate_mm * 1e6,
-        wavelength_nm,
-    );
-    let bare = coherent(
-        &sub_real,
-        std::iter::empty(),
-        &Tilted::new(stack.exit, snell),
-        wavelength_nm,
-    );
+    let tau = thick::internal_transmittance(setup.back_in.0.q, substrate_mm * 1e6, wavelength_nm);
+    let lossless = stack.substrate.im == 0.0;
     let tau2 = tau * tau;
     let partials = [
-        (front.result.s, inside.result.s, bare.s),
-        (front.result.p, inside.result.p, bare.p),
+        (front.result.s, inside.result.s, back_in.s),
+        (front.result.p, inside.result.p, back_in.p),
     ]
     .map(|(f, b, back)| {
-        let (rb, tf) = (b.reflectance, f.transmittance);
-        let (rr, tt) = (back.reflectance, back.transmittance);
-        let den = 1.0 - rb * rr * tau2;
+        let (r_in, t_in, t_out) = (b.reflectance, f.transmittance, b.transmittance);
+        let t_in_out = if lossless { t_in * t_in } else { t_in * t_out };
+        let (r2, t2) = (back.reflectance, back.transmittance);
+        let den = 1.0 - r_in * r2 * tau2;
+        let r_tio = tau2 * r2 / den;
         Partials {
-            r_tf: 2.0 * tf * tau2 * rr / den,
-            t_tf: tau * tt / den,
-            r_rb: tf * tf * tau2 * rr * rr * tau2 / (den * den),
-            t_rb: tf * tau * tt * rr * tau2 / (den * den),
+            // t_in_out = t_in·t_out (t_in² for a lossless substrate, where t_out = t_in).
+            r_tin: r_tio * if lossless { 2.0 * t_in } else { t_out },
+            r_tout: if lossless { 0.0 } else { r_tio * t_in },
+            t_tin: tau * t2 / den,
+            r_rin: t_in_out * tau2 * r2 * r2 * tau2 / (den * den),
+            t_rin: t_in * tau * t2 * r2 * tau2 / (den * den),
         }
     });
     for k in 0..n {
@@ -339,14 +325,16 @@ pub fn solve_gradient(
     }
 }
 
-/// Partial derivatives of the thick-substrate R and T with respect to the coating's front
-/// transmittance T_f and its reflectance from inside R_b (∂R/∂R_f = 1).
+/// Partial derivatives of the thick-substrate R and T with respect to the coating's
+/// transmittance inwards (t_in) and outwards (t_out) and its reflectance from inside (r_in);
+/// ∂R/∂r_out = 1.
 #[derive(Clone, Copy, Debug)]
 struct Partials {
-    r_tf: f64,
-    t_tf: f64,
-    r_rb: f64,
-    t_rb: f64,
+    r_tin: f64,
+    r_tout: f64,
+    t_tin: f64,
+    r_rin: f64,
+    t_rin: f64,
 }
 
 /// Writes layer `k`'s derivatives from the front pass and, for a thick substrate, the inside
@@ -364,9 +352,10 @@ fn fill(out: &mut Gradient, front: &Pass, k: usize, thick: Option<(&Pass, [Parti
         if let Some((ins, partials)) = thick {
             let b = if pol == 0 { ins.result.s } else { ins.result.p };
             let dr_b = 2.0 * (b.r.conj() * ins.dr[pol][k]).re;
+            let dt_b = -2.0 * b.transmittance * ins.dd_rel[pol][k].re;
             let q = partials[pol];
-            d_r[pol] = dr_f + q.r_tf * dt_f + q.r_rb * dr_b;
-            d_t[pol] = q.t_tf * dt_f + q.t_rb * dr_b;
+            d_r[pol] = dr_f + q.r_tin * dt_f + q.r_tout * dt_b + q.r_rin * dr_b;
+            d_t[pol] = q.t_tin * dt_f + q.t_rin * dr_b;
         } else {
             d_r[pol] = dr_f;
             d_t[pol] = dt_f;
@@ -448,6 +437,7 @@ mod tests {
                 exit: Complex64::new(1.0, 0.0),
                 materials: &materials,
                 layers: &layers,
+                back_layers: &[],
                 substrate_mm,
             };
             let wl = rng.range(400.0, 900.0);
@@ -491,6 +481,7 @@ mod tests {
             exit: Complex64::new(1.0, 0.0),
             materials: &materials,
             layers: &layers,
+            back_layers: &[],
             substrate_mm: None,
         };
         let (wl, aoi) = (633.0, 50f64.to_radians());
@@ -542,6 +533,7 @@ mod tests {
             exit: Complex64::new(1.0, 0.0),
             materials: &materials,
             layers: &layers,
+            back_layers: &[],
             substrate_mm: Some(1.0),
         };
         let (mut g, mut scratch) = (Gradient::default(), GradientScratch::default());

@@ -77,6 +77,8 @@ pub struct Evaluator {
     /// Per group: range into `points`.
     group_points: Vec<(usize, usize)>,
     substrate_mm: Option<f64>,
+    /// The back face's coating (palette indices; the palette starts with the design's own).
+    back_layers: Vec<(usize, f64)>,
     /// Per target: its points, in wavelength order.
     pub(crate) target_points: Vec<Vec<usize>>,
 }
@@ -196,6 +198,7 @@ impl Evaluator {
             points,
             group_points,
             substrate_mm: resolved.substrate_mm,
+            back_layers: resolved.back_layers.clone(),
             target_points,
         })
     }
@@ -243,6 +246,7 @@ impl Evaluator {
             exit: row[n + 2],
             materials: &row[..n],
             layers,
+            back_layers: &self.back_layers,
             substrate_mm: self.substrate_mm,
         }
     }
