@@ -14,3 +14,4 @@ pub mod gui;
 pub mod material;
 pub mod number;
 pub mod optics;
+pub mod optimize;

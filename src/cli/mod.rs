@@ -20,6 +20,8 @@ use std::io::{self, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
+pub mod optimize;
+
 use anyhow::{Context as _, Result, bail};
 use clap::{Args, CommandFactory as _, FromArgMatches as _, Parser, Subcommand, ValueEnum};
 
@@ -331,6 +333,9 @@ pub enum Command {
     /// R or T over wavelength × angle as CSV (wavelength_nm,aoi_deg,value), or a heat map
     /// with --out FILE.png / FILE.svg.
     Map(MapArgs),
+    /// Refines the thicknesses (with --needle: inserts layers too) to meet the design's
+    /// targets; writes the new design to --out and the merit to standard output.
+    Optimize(optimize::OptimizeArgs),
     /// The layer table of a design: material, nm, QWOT and optical thickness.
     Info {
         /// The design file (.ron).
@@ -516,6 +521,7 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
         | Command::Admittance(_)
         | Command::Color(_)
         | Command::Map(_)) => views::run(&cmd, stdout, stderr)?,
+        Command::Optimize(args) => optimize::run(&args, stdout, stderr)?,
         Command::Info { design } => {
             let d = load_design(&design)?;
             info(&d, stdout)?;
