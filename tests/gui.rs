@@ -12,7 +12,7 @@ use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable as _;
 use stackwise::cli::{self, SideArg};
 use stackwise::design::file;
-use stackwise::gui::{App, Command, FileAction};
+use stackwise::gui::{App, Command, Edit, FileAction};
 
 fn harness(app: App) -> Harness<'static, App> {
     Harness::builder()
@@ -493,4 +493,101 @@ fn with_no_desktop_dialog_a_typed_path_and_enter_save_there() {
         "now the design's file"
     );
     assert!(!h.state().doc().is_dirty(), "saved");
+}
+
+/// Runs frames until `done` holds (background jobs report between frames), at most 60 s.
+fn run_until(h: &mut Harness<'_, App>, done: impl Fn(&App) -> bool) {
+    for _ in 0..6000 {
+        // One frame at a time: the progress bar animates, so the window never settles.
+        h.step();
+        if done(h.state()) {
+            h.run();
+            return;
+        }
+        std::thread::sleep(std::time::Duration::from_millis(10));
+    }
+    panic!("the window did not get there within 60 s");
+}
+
+fn ar_start() -> Harness<'static, App> {
+    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("designs/visible-ar-start.ron");
+    let mut app = App::new(Some(path));
+    app.force_inline = true;
+    let mut h = harness(app);
+    h.run();
+    h
+}
+
+#[test]
+fn targets_show_pass_fail_and_edits_are_undo_steps() {
+    let mut h = ar_start();
+    // One quarter wave of SiO2 on N-BK7 leaves about 1 % reflectance: neither target is met.
+    h.get_by_label_contains("0 of 2 targets met");
+    h.get_by_label_contains("target 1: R (mean) ≤ 0.2 % at 0°, 420–680 nm");
+    h.get_by_label("Add target").click();
+    h.run();
+    assert_eq!(h.state().doc().design().targets.len(), 3, "added");
+    // The first target's Remove button comes first.
+    h.query_all_by_label("Remove").next().unwrap().click();
+    h.run();
+    let t = &h.state().doc().design().targets;
+    assert_eq!(t.len(), 2, "deleted");
+    assert_eq!(t[0].aoi_deg, 30.0, "the first one went");
+    h.state_mut().push(Command::Undo);
+    h.run();
+    assert_eq!(h.state().doc().design().targets.len(), 3, "undone");
+}
+
+#[test]
+fn refining_runs_in_the_background_and_applies_as_one_undo_step() {
+    let mut h = ar_start();
+    let before = h.state().doc().design().clone();
+    let start_merit = stackwise::optimize::evaluate_targets(&before)
+        .unwrap()
+        .merit;
+    h.state_mut().optimize.needle_materials = "TiO2, SiO2".into();
+    h.get_by_label("Refine with needles").click();
+    run_until(&mut h, |a| a.optimize.run.is_none());
+    let found = h
+        .state()
+        .optimize
+        .finished
+        .as_ref()
+        .expect("a result waits");
+    assert!(found.outcome.merit < start_merit, "better than the start");
+    assert_eq!(*h.state().doc().design(), before, "nothing applied yet");
+    h.get_by_label("Apply").click();
+    h.run();
+    let after = h.state().doc().design().clone();
+    let merit = stackwise::optimize::evaluate_targets(&after).unwrap().merit;
+    assert!(merit < start_merit, "applied: {merit} < {start_merit}");
+    assert!(after.layers.len() > 1, "needles added layers");
+    h.state_mut().push(Command::Undo);
+    h.run();
+    assert_eq!(
+        *h.state().doc().design(),
+        before,
+        "one undo step takes it back"
+    );
+}
+
+#[test]
+fn a_result_for_a_design_edited_meanwhile_is_not_applied_over_the_edit() {
+    let mut h = ar_start();
+    h.get_by_label("Refine").click();
+    run_until(&mut h, |a| a.optimize.run.is_none());
+    assert!(h.state().optimize.finished.is_some(), "a result waits");
+    h.state_mut()
+        .push(Edit::SetThickness { layer: 0, nm: 90.0 });
+    h.run();
+    let edited = h.state().doc().design().clone();
+    h.get_by_label("Apply").click();
+    h.run();
+    assert_eq!(*h.state().doc().design(), edited, "the edit stands");
+    h.get_by_label_contains("the design changed while the work was running");
+    h.get_by_label("Open as new design").click();
+    h.run();
+    assert_eq!(h.state().designs.len(), 2, "the result opens beside it");
+    assert!(h.state().doc().design().name.ends_with("(optimised)"));
+    assert!(h.state().doc().is_dirty(), "a new, unsaved design");
 }

@@ -8,11 +8,11 @@ use anyhow::{Context as _, Result};
 use clap::Args;
 
 use super::{PolArg, QuantityArg, Range, emit, image_kind, load_design, report};
-use crate::export::plot::ImageFormat;
 use crate::analysis;
 use crate::analysis::map::{RtMap, rt_map};
 use crate::export;
 use crate::export::heatmap::{map_heatmap, render_heatmap_png, render_heatmap_svg};
+use crate::export::plot::ImageFormat;
 
 /// An angle range FROM:TO:STEP in degrees.
 #[derive(Clone, Copy, Debug, PartialEq)]

@@ -31,6 +31,8 @@ pub enum CentralView {
 /// Side windows that can be open beside the main layout.
 #[derive(Debug, Default)]
 pub(super) struct Windows {
+    /// The targets and optimisation panel on the right.
+    pub(super) targets: bool,
     /// The materials browser.
     pub(super) materials: bool,
     /// The cautions.
@@ -80,6 +82,8 @@ pub struct App {
     pub export: export_window::ExportState,
     /// The measured curve over the spectrum.
     pub measured: measured::MeasuredState,
+    /// Optimisation settings, the run going on and its result.
+    pub optimize: super::optimize::OptimizeState,
     pub(super) browser: materials::BrowserState,
     title_sent: String,
     pub(super) commands: Vec<Command>,
@@ -130,9 +134,13 @@ impl App {
             pending: None,
             choosing: None,
             allow_close: false,
-            windows: Windows::default(),
+            windows: Windows {
+                targets: true,
+                ..Windows::default()
+            },
             export: export_window::ExportState::default(),
             measured: measured::MeasuredState::default(),
+            optimize: super::optimize::OptimizeState::default(),
             browser: materials::BrowserState::default(),
             title_sent: String::new(),
             commands: Vec::new(),
@@ -231,6 +239,7 @@ impl App {
         self.handle_shortcuts(&ctx);
         self.handle_close_request(&ctx);
         self.apply_queued();
+        self.poll_optimisation(&ctx);
         self.update_sweeps(&ctx);
 
         egui::Panel::top("menu").show(ui, |ui| self.menu_ui(ui));
@@ -249,6 +258,12 @@ impl App {
                 stack::stack_ui(ui, self.designs[i].doc.design(), &mut self.stack, &mut out);
                 self.commands.extend(out.into_iter().map(Command::from));
             });
+        if self.windows.targets {
+            egui::Panel::right("targets")
+                .resizable(true)
+                .default_size(400.0)
+                .show(ui, |ui| self.targets_panel_ui(ui));
+        }
         egui::CentralPanel::default().show(ui, |ui| self.central_ui(ui));
         self.error_window_ui(&ctx);
         if let Some(action) = self.pending.clone()
@@ -282,7 +297,8 @@ impl App {
         }
     }
 
-    fn central_ui(&mut self, ui: &mut egui::Ui) {
+    /// The row above the views: which view, and which designs to overlay.
+    fn central_choice_ui(&mut self, ui: &mut egui::Ui) {
         ui.horizontal_wrapped(|ui| {
             ui.selectable_value(&mut self.central, CentralView::Plots, "Spectrum and angle");
             let to_compare = ui
@@ -315,6 +331,10 @@ impl App {
                 }
             }
         });
+    }
+
+    fn central_ui(&mut self, ui: &mut egui::Ui) {
+        self.central_choice_ui(ui);
         ui.separator();
         let i = self.active_index();
         match self.central {
@@ -340,6 +360,9 @@ impl App {
                         .collect()
                 };
                 let (over_s, over_a) = (overlays(false), overlays(true));
+                let extras = self.spectrum_extras();
+                let mut over_lines = super::optimize::as_overlays(&extras);
+                over_lines.extend(self.measured.overlay());
                 let active = &self.designs[i];
                 let h = ui.available_height();
                 ui.allocate_ui(egui::vec2(ui.available_width(), h * 0.58), |ui| {
@@ -349,7 +372,7 @@ impl App {
                         &active.spectrum,
                         &over_s,
                         &mut self.spectrum_plot,
-                        self.measured.overlay().as_slice(),
+                        &over_lines,
                     );
                 });
                 ui.separator();

@@ -33,6 +33,8 @@ pub struct OpenDesign {
     pub autosaved_revision: Option<u64>,
     /// Its recovery file, once autosave has written one (or the file it was recovered from).
     pub recovery_file: Option<PathBuf>,
+    /// Its targets evaluated (revision, outcome), when it has targets.
+    pub targets: Option<(u64, Result<crate::optimize::Evaluation, String>)>,
 }
 
 impl OpenDesign {
@@ -49,6 +51,7 @@ impl OpenDesign {
             last_edit: None,
             autosaved_revision: None,
             recovery_file: None,
+            targets: None,
         }
     }
 

@@ -96,6 +96,8 @@ pub enum Edit {
     },
     /// Removes one of the design's own materials; refused while anything uses it.
     RemoveMaterial(String),
+    /// Replaces the optimisation targets (each is checked; a bad one refuses the whole list).
+    SetTargets(Vec<crate::design::Target>),
     /// Takes the result of background work (e.g. an optimised design) in place of the
     /// design; refused when the design changed since the work started from `from_revision`.
     Adopt {
@@ -459,6 +461,12 @@ impl Document {
             }
             Edit::OnBackFace(edit) => self.apply_on_back_face(*edit)?,
             Edit::SetName(name) => self.design.name = name,
+            Edit::SetTargets(targets) => {
+                let mut d = self.design.clone();
+                d.targets = targets;
+                d.validate()?;
+                self.design = d;
+            }
             Edit::AddMaterial(m) => self.add_material(m)?,
             Edit::ReplaceMaterial { old_name, material } => {
                 self.replace_material(&old_name, material)?;

@@ -27,6 +27,8 @@ pub enum Action {
     Undo,
     /// Redo the last undone step.
     Redo,
+    /// Show or hide the targets and optimisation panel.
+    Targets,
     /// Show or hide the materials browser.
     Materials,
     /// Show or hide the cautions.
@@ -39,7 +41,7 @@ pub enum Action {
 
 impl Action {
     /// Every action, in menu order.
-    pub const ALL: [Action; 12] = [
+    pub const ALL: [Action; 13] = [
         Action::New,
         Action::Open,
         Action::Save,
@@ -48,6 +50,7 @@ impl Action {
         Action::Quit,
         Action::Undo,
         Action::Redo,
+        Action::Targets,
         Action::Materials,
         Action::Cautions,
         Action::Export,
@@ -66,6 +69,7 @@ impl Action {
             Action::Quit => "Quit",
             Action::Undo => "Undo",
             Action::Redo => "Redo",
+            Action::Targets => "Targets and optimisation",
             Action::Materials => "Materials…",
             Action::Cautions => "Cautions",
             Action::Export => "Export…",
@@ -97,6 +101,7 @@ impl Action {
             Action::Undo => &UNDO,
             Action::Redo => &REDO,
             Action::Quit
+            | Action::Targets
             | Action::Materials
             | Action::Cautions
             | Action::Export
@@ -126,6 +131,7 @@ impl App {
             Action::Quit => self.file_action(ctx, FileAction::Quit),
             Action::Undo => self.push(Command::Undo),
             Action::Redo => self.push(Command::Redo),
+            Action::Targets => self.windows.targets ^= true,
             Action::Materials => self.windows.materials ^= true,
             Action::Cautions => self.windows.cautions ^= true,
             Action::Export => self.export.open ^= true,
@@ -200,6 +206,7 @@ impl App {
                 }
             });
             for a in [
+                Action::Targets,
                 Action::Materials,
                 Action::Cautions,
                 Action::Export,

@@ -35,11 +35,13 @@ pub mod jobs;
 pub mod materials;
 pub mod measured;
 mod menu;
+pub mod optimize;
 pub mod plots;
 mod recovery;
 mod section;
 pub mod stack;
 mod status;
+pub mod targets;
 pub mod theme;
 
 use std::path::PathBuf;

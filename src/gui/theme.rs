@@ -20,6 +20,15 @@ const RAMP: [[u8; 3]; 7] = [
 ];
 
 /// Colour of a metal (k > n at the reference wavelength).
+/// A target that is met.
+pub const PASS: Color32 = Color32::from_rgb(40, 160, 70);
+/// A target that is not met.
+pub const FAIL: Color32 = Color32::from_rgb(210, 50, 50);
+/// A target not evaluated (yet).
+pub const TARGET: Color32 = Color32::from_rgb(150, 150, 150);
+/// The live preview of an optimisation's best design so far.
+pub const PREVIEW: Color32 = Color32::from_rgb(150, 90, 200);
+/// Metals in the cross-section.
 pub const METAL: Color32 = Color32::from_rgb(168, 170, 176);
 /// Colour of a material whose index cannot be evaluated.
 pub const UNKNOWN: Color32 = Color32::from_rgb(200, 60, 60);

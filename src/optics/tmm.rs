@@ -268,7 +268,8 @@ fn finish_absorbing(
         (four * eta_sub.re, 1.0)
     } else {
         let x = 4.0 * eta0.norm_sqr() * eta_sub.re;
-        let t = x.signum() * (x.abs().ln() - 2.0 * log_scale - den2.abs().ln()).exp() * den2.signum();
+        let t =
+            x.signum() * (x.abs().ln() - 2.0 * log_scale - den2.abs().ln()).exp() * den2.signum();
         (t, (-log_scale).exp())
     };
     let absorptance = four * (b * c.conj()).re - transmittance;
