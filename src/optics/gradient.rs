@@ -176,7 +176,6 @@ fn pass(
         }
     }
     let cos_ratio = (incident.q / incident.n) / (substrate.q / substrate.n);
-    let scale2 = (-2.0 * log_scale).exp();
     let eta0 = [incident.eta_s, incident.eta_p];
     let eta_sub = [substrate.eta_s, substrate.eta_p];
     let t_factor = [ONE, cos_ratio];
@@ -187,7 +186,7 @@ fn pass(
             v[pol][1],
             eta_sub[pol],
             t_factor[pol],
-            scale2,
+            log_scale,
         )
     });
     out.result = Coherent {
