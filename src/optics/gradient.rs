@@ -266,7 +266,17 @@ pub fn solve_gradient(
     mats.clear();
     mats.extend(stack.materials.iter().map(|&n| Tilted::new(n, setup.snell)));
     let (fi, fs) = &setup.front_out;
-    pass(fi, fs, mats, stack.layers, false, k0, trig_buf, below, front);
+    pass(
+        fi,
+        fs,
+        mats,
+        stack.layers,
+        false,
+        k0,
+        trig_buf,
+        below,
+        front,
+    );
     let n = stack.layers.len();
     out.resize(n);
     let Some(substrate_mm) = stack.substrate_mm else {
@@ -282,7 +292,17 @@ pub fn solve_gradient(
         return;
     };
     let (bi, bs) = &setup.front_in;
-    pass(bi, bs, mats, stack.layers, true, k0, trig_buf, below, inside);
+    pass(
+        bi,
+        bs,
+        mats,
+        stack.layers,
+        true,
+        k0,
+        trig_buf,
+        below,
+        inside,
+    );
     // The back face (its coating or the bare surface) seen from inside the substrate.
     let (ci, cs) = &setup.back_in;
     let back_in = coherent(
