@@ -450,13 +450,23 @@ mod tests {
                 .map(|_| ((rng.next() * 3.0) as usize % 3, rng.range(5.0, 250.0)))
                 .collect();
             let substrate_mm = (case % 2 == 1).then(|| rng.range(0.5, 3.0));
+            let back = [(0, rng.range(20.0, 120.0)), (1, rng.range(20.0, 120.0))];
             let stack = StackAt {
                 incident: Complex64::new(rng.range(1.0, 1.5), 0.0),
-                substrate: Complex64::new(rng.range(1.4, 1.9), rng.range(0.0, 2e-6)),
+                // Every third case a lossless substrate (its own branch of the combination).
+                substrate: Complex64::new(
+                    rng.range(1.4, 1.9),
+                    if case % 3 == 0 {
+                        0.0
+                    } else {
+                        rng.range(0.0, 2e-6)
+                    },
+                ),
                 exit: Complex64::new(1.0, 0.0),
                 materials: &materials,
                 layers: &layers,
-                back_layers: &[],
+                // A coated back face on some thick substrates.
+                back_layers: if case % 4 == 1 { &back } else { &[] },
                 substrate_mm,
             };
             let wl = rng.range(400.0, 900.0);

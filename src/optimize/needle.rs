@@ -76,6 +76,8 @@ fn candidates(
             &below,
         );
         let mut done = 0.0;
+        // At most a few hundred trial depths per layer, however thick.
+        let step_nm = step_nm.max(w.nm / 400.0);
         let mut z = min_nm.max(step_nm * 0.5);
         if !w.locked {
             while z <= w.nm - min_nm.max(step_nm * 0.5) {

@@ -231,6 +231,15 @@ impl Evaluator {
         self.groups[group].wavelength_nm
     }
 
+    /// The longest wavelength any target samples (nm).
+    #[must_use]
+    pub fn longest_nm(&self) -> f64 {
+        self.groups
+            .iter()
+            .map(|g| g.wavelength_nm)
+            .fold(0.0, f64::max)
+    }
+
     /// Number of residuals (target samples).
     #[must_use]
     pub fn residual_count(&self) -> usize {

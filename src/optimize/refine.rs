@@ -120,7 +120,10 @@ pub(crate) fn refine_layers(
     let free: Vec<usize> = (0..layers.len()).filter(|&k| !layers[k].locked).collect();
     let x0: Vec<f64> = free.iter().map(|&k| layers[k].nm.max(min_nm)).collect();
     let lower = vec![min_nm; free.len()];
-    let upper = vec![f64::INFINITY; free.len()];
+    // No layer needs to be thicker than a few of the longest target wavelengths: beyond that a
+    // lossless layer only repeats itself (period λ/2n), and a bound keeps the search finite.
+    let cap = (8.0 * ev.longest_nm()).max(x0.iter().copied().fold(0.0, f64::max));
+    let upper = vec![cap; free.len()];
     let mut problem = Thicknesses {
         ev,
         layers: layers.iter().map(|w| (w.mat, w.nm)).collect(),
