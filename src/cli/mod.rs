@@ -18,6 +18,14 @@ use crate::material::import::WavelengthUnit;
 use crate::material::{Catalog, builtin};
 use crate::optics::Side;
 
+mod monitor;
+mod sensitivity;
+mod tolerance;
+
+pub use monitor::MonitorArgs;
+pub use sensitivity::SensitivityArgs;
+pub use tolerance::ToleranceArgs;
+
 /// Design and analyse optical thin-film coatings. With no command, opens the window.
 #[derive(Debug, Parser)]
 #[command(
@@ -300,6 +308,15 @@ pub enum Command {
     /// Figures of several designs over a band as CSV: mean, minimum and maximum of R and T
     /// (mean of s and p) and where each extreme lies.
     Compare(CompareArgs),
+    /// Monte Carlo tolerances as CSV: wavelength_nm,nominal,p05,p50,p95 (fractions); a
+    /// summary on standard error.
+    Tolerance(ToleranceArgs),
+    /// Each layer's sensitivity as CSV, most sensitive first: layer,material,nm,sensitivity
+    /// (RMS change of R or T per 1 % thickness change).
+    Sensitivity(SensitivityArgs),
+    /// The optical monitoring signal through the run as CSV: deposited_nm,layer,signal; the
+    /// per-layer table (start, end, turning points) on standard error.
+    Monitor(MonitorArgs),
     /// The layer table of a design: material, nm, QWOT and optical thickness.
     Info {
         /// The design file (.ron).
@@ -476,6 +493,9 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
         Command::Report(args) => report_cmd(&args, stdout)?,
         Command::Measured(args) => measured_cmd(&args, stdout, stderr)?,
         Command::Compare(args) => compare_cmd(&args, stdout, stderr)?,
+        Command::Tolerance(args) => tolerance::run(&args, stdout, stderr)?,
+        Command::Sensitivity(args) => sensitivity::run(&args, stdout, stderr)?,
+        Command::Monitor(args) => monitor::run(&args, stdout, stderr)?,
         Command::Info { design } => {
             let d = load_design(&design)?;
             info(&d, stdout)?;
