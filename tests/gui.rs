@@ -41,7 +41,7 @@ fn demo() -> Harness<'static, App> {
 fn nms(h: &Harness<'_, App>) -> Vec<f64> {
     h.state()
         .doc()
-        .design
+        .design()
         .layers
         .iter()
         .map(|l| l.nm.get())
@@ -140,7 +140,7 @@ fn add_delete_reorder_and_scale_through_the_buttons() {
     h.get_by_label("Add").click();
     h.run();
     assert_eq!(
-        h.state().doc().design.layers.len(),
+        h.state().doc().design().layers.len(),
         5,
         "added on the outside"
     );
@@ -182,14 +182,14 @@ fn qwot_and_nm_stay_in_step() {
     let mut h = demo();
     h.get_by_label("Layer 1 QWOT").set_value_accesskit(1.0);
     h.run();
-    let d = &h.state().doc().design;
+    let d = &h.state().doc().design();
     let q = d.layer_qwot(1).unwrap();
     assert!((q - 1.0).abs() < 1e-9, "QWOT {q}");
     // Editing nm moves the QWOT by the same ratio.
     let nm = d.layers[0].nm.get();
     h.get_by_label("Layer 1 nm").set_value_accesskit(nm * 0.5);
     h.run();
-    let q = h.state().doc().design.layer_qwot(1).unwrap();
+    let q = h.state().doc().design().layer_qwot(1).unwrap();
     assert!((q - 0.5).abs() < 1e-9, "QWOT after halving nm: {q}");
 }
 
@@ -221,7 +221,7 @@ fn undo_and_redo_from_the_keyboard() {
 #[test]
 fn a_malformed_file_keeps_the_open_design_and_shows_where() {
     let mut h = demo();
-    let before = h.state().doc().design.clone();
+    let before = h.state().doc().design().clone();
     let dir = tempfile::tempdir().unwrap();
     let bad = dir.path().join("broken.ron");
     std::fs::write(
@@ -232,7 +232,7 @@ fn a_malformed_file_keeps_the_open_design_and_shows_where() {
     let ctx = h.ctx.clone();
     h.state_mut().file_action(&ctx, FileAction::Open(bad));
     h.run();
-    assert_eq!(h.state().doc().design, before, "design untouched");
+    assert_eq!(*h.state().doc().design(), before, "design untouched");
     let msg = h.state().error_window.clone().expect("error window open");
     assert!(msg.contains("line 4"), "{msg}");
     assert!(
@@ -253,7 +253,7 @@ fn a_bad_start_file_opens_the_demo_and_says_why() {
     let app = App::new(Some(missing));
     let msg = app.error_window.clone().expect("error shown");
     assert!(msg.contains("nope.ron"), "{msg}");
-    assert_eq!(app.doc().design.layers.len(), 4, "demo design");
+    assert_eq!(app.doc().design().layers.len(), 4, "demo design");
 }
 
 #[test]
@@ -265,7 +265,7 @@ fn the_notation_box_builds_layers_and_shows_the_error_column() {
     assert_eq!(h.state().stack.notation, "(HL)^3 H", "typed");
     h.get_by_label("Build").click();
     h.run();
-    let d = &h.state().doc().design;
+    let d = &h.state().doc().design();
     assert_eq!(d.layers.len(), 7, "seven layers");
     assert_eq!(d.layers[0].material, "TiO2", "H is bound to TiO2");
     assert!(
@@ -278,7 +278,7 @@ fn the_notation_box_builds_layers_and_shows_the_error_column() {
     h.get_by_label("Build").click();
     h.run();
     assert_eq!(
-        h.state().doc().design.layers.len(),
+        h.state().doc().design().layers.len(),
         7,
         "a bad notation changes nothing"
     );
@@ -304,11 +304,11 @@ fn new_keeps_the_unsaved_design_and_closing_it_asks_first() {
         "a second design, nothing replaced"
     );
     assert!(
-        h.state().doc().design.layers.is_empty(),
+        h.state().doc().design().layers.is_empty(),
         "the new one is shown"
     );
     assert_eq!(
-        h.state().designs[0].doc.design.layers[0].nm.get(),
+        h.state().designs[0].doc.design().layers[0].nm.get(),
         1.0,
         "the edited design is still open with its edit"
     );
@@ -321,7 +321,11 @@ fn new_keeps_the_unsaved_design_and_closing_it_asks_first() {
     h.get_by_label("Cancel").click();
     h.run();
     assert_eq!(h.state().designs.len(), 2, "cancel keeps it open");
-    assert_eq!(h.state().doc().design.layers[0].nm.get(), 1.0, "and shown");
+    assert_eq!(
+        h.state().doc().design().layers[0].nm.get(),
+        1.0,
+        "and shown"
+    );
     h.state_mut()
         .file_action(&ctx, FileAction::CloseDesign(edited));
     h.run();
@@ -362,7 +366,7 @@ fn autosave_writes_a_recovery_file_that_is_offered_next_time() {
     h2.get_by_label("Recover").click();
     h2.run();
     assert_eq!(
-        h2.state().doc().design.layers[1].nm.get(),
+        h2.state().doc().design().layers[1].nm.get(),
         42.0,
         "recovered"
     );
@@ -397,7 +401,7 @@ fn dragging_a_layer_number_moves_the_layer() {
     let before: Vec<String> = h
         .state()
         .doc()
-        .design
+        .design()
         .layers
         .iter()
         .map(|l| l.material.clone())
@@ -416,7 +420,7 @@ fn dragging_a_layer_number_moves_the_layer() {
     let after: Vec<String> = h
         .state()
         .doc()
-        .design
+        .design()
         .layers
         .iter()
         .map(|l| l.material.clone())
@@ -440,7 +444,7 @@ fn light_from_the_back_shows_what_the_engine_gives_for_the_back_side() {
         Some(Ok(r)) => r.curves.r.clone(),
         other => panic!("no spectrum: {other:?}"),
     };
-    let d = h.state().doc().design.clone();
+    let d = h.state().doc().design().clone();
     let wl = analysis::wavelengths_nm(v.from_nm, v.to_nm, v.step_nm).unwrap();
     let back = analysis::spectrum(&d.resolve().unwrap(), &wl, v.aoi_deg, Side::Back).unwrap();
     let front = analysis::spectrum(&d.resolve().unwrap(), &wl, v.aoi_deg, Side::Front).unwrap();
@@ -449,4 +453,44 @@ fn light_from_the_back_shows_what_the_engine_gives_for_the_back_side() {
         "the window shows the back-side reflectance"
     );
     assert_ne!(shown, front.curves.r, "which differs from the front side's");
+}
+
+#[test]
+fn with_no_desktop_dialog_a_typed_path_and_enter_save_there() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut app = App::new(None);
+    app.force_inline = true;
+    app.own_chooser = true;
+    let mut h = harness(app);
+    h.run();
+    h.get_by_label("File").click();
+    h.run();
+    h.get_by_label_contains("Save as…").click();
+    h.run();
+    h.get_by_label("Save to file");
+    assert!(
+        h.ctx
+            .memory(|m| m.has_focus(stackwise::gui::chooser::name_field_id())),
+        "the name field has the keyboard focus"
+    );
+    // Typing goes straight into the field and replaces the suggested name.
+    let target = dir.path().join("typed-here.ron");
+    h.event(egui::Event::Text(target.display().to_string()));
+    h.run();
+    h.key_press(Key::Enter);
+    h.run();
+    assert!(target.exists(), "saved where the typed path says");
+    let reference = dir.path().join("reference.ron");
+    file::save(&reference, h.state().doc().design()).unwrap();
+    assert_eq!(
+        std::fs::read(&target).unwrap(),
+        std::fs::read(&reference).unwrap(),
+        "the same bytes as Save writes"
+    );
+    assert_eq!(
+        h.state().doc().path(),
+        Some(target.as_path()),
+        "now the design's file"
+    );
+    assert!(!h.state().doc().is_dirty(), "saved");
 }

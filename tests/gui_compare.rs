@@ -64,13 +64,13 @@ fn two_designs(dir: &Path) -> (Harness<'static, App>, DesignId, DesignId) {
 }
 
 fn thickness(h: &Harness<'_, App>, id: DesignId, layer: usize) -> f64 {
-    h.state().design(id).unwrap().doc.design.layers[layer]
+    h.state().design(id).unwrap().doc.design().layers[layer]
         .nm
         .get()
 }
 
 fn name(h: &Harness<'_, App>) -> String {
-    h.state().doc().design.name.clone()
+    h.state().doc().design().name.clone()
 }
 
 #[test]
@@ -292,7 +292,7 @@ fn closing_the_window_asks_about_every_unsaved_design() {
         h.run();
     }
     let ctx = h.ctx.clone();
-    h.state_mut().file_action(&ctx, FileAction::Close);
+    h.state_mut().file_action(&ctx, FileAction::Quit);
     h.run();
     h.get_by_label_contains("\"Design Alpha\" has changes");
     h.get_by_label_contains("1 other open design");
@@ -388,7 +388,7 @@ fn each_unsaved_design_gets_its_own_recovery_file() {
         2,
         "demo plus the recovered design"
     );
-    assert_eq!(h2.state().doc().design.name, "Design Beta");
-    assert_eq!(h2.state().doc().design.layers[0].nm.get(), 30.0);
+    assert_eq!(h2.state().doc().design().name, "Design Beta");
+    assert_eq!(h2.state().doc().design().layers[0].nm.get(), 30.0);
     assert!(h2.state().doc().is_dirty(), "recovered work is unsaved");
 }

@@ -50,7 +50,7 @@ fn view_spectrum(app: &App) -> Spectrum {
     let v = &app.view;
     let wl = analysis::wavelengths_nm(v.from_nm, v.to_nm, v.step_nm).unwrap();
     analysis::spectrum(
-        &app.doc().design.resolve().unwrap(),
+        &app.doc().design().resolve().unwrap(),
         &wl,
         v.aoi_deg,
         Side::Front,
@@ -97,6 +97,81 @@ fn spectrum_csv_from_the_window_is_the_cli_csv() {
         window.lines().count()
     );
     assert_eq!(window, cli, "byte for byte the CLI's CSV");
+}
+
+#[test]
+fn exports_follow_the_side_the_views_show() {
+    let dir = tempfile::tempdir().unwrap();
+    let design_path =
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("designs/laser-mirror-1064-45.ron");
+    let mut app = App::new(Some(design_path.clone()));
+    app.force_inline = true;
+    app.view.side = Side::Back;
+    app.view.aoi_deg = 45.0;
+    let mut h = harness(app);
+    h.run();
+    open_export(&mut h, "Spectrum table (CSV)");
+    h.get_by_label_contains("light from the back");
+    let out = dir.path().join("window.csv");
+    h.state_mut().export_to(&out).unwrap();
+
+    let v = h.state().view.clone();
+    let cli_csv = |side: SideArg| {
+        let mut stdout = Vec::new();
+        cli::run(
+            cli::Command::Spectrum {
+                design: design_path.clone(),
+                range: cli::Range {
+                    from: Some(v.from_nm),
+                    to: Some(v.to_nm),
+                    step: Some(v.step_nm),
+                },
+                aoi: v.aoi_deg,
+                side,
+                out: None,
+            },
+            &mut stdout,
+            &mut Vec::new(),
+        )
+        .unwrap();
+        String::from_utf8(stdout).unwrap()
+    };
+    let window = std::fs::read_to_string(&out).unwrap();
+    assert_eq!(
+        window,
+        cli_csv(SideArg::Back),
+        "the CLI's --side back, byte for byte"
+    );
+    assert_ne!(
+        window,
+        cli_csv(SideArg::Front),
+        "not the front side's numbers"
+    );
+
+    // The angle table, too.
+    open_export(&mut h, "Angle table (CSV)");
+    let out = dir.path().join("angles.csv");
+    h.state_mut().export_to(&out).unwrap();
+    let mut stdout = Vec::new();
+    cli::run(
+        cli::Command::Angles {
+            design: design_path.clone(),
+            wavelength: v.angle_wavelength_nm,
+            from: 0.0,
+            to: 89.0,
+            step: v.angle_step_deg,
+            side: SideArg::Back,
+            out: None,
+        },
+        &mut stdout,
+        &mut Vec::new(),
+    )
+    .unwrap();
+    assert_eq!(
+        std::fs::read_to_string(&out).unwrap(),
+        String::from_utf8(stdout).unwrap(),
+        "angle table from the back"
+    );
 }
 
 #[test]

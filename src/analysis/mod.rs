@@ -11,10 +11,14 @@ pub mod compare;
 mod grid;
 pub mod measured;
 pub mod monitor;
+mod plan;
 pub mod sensitivity;
 mod sweep;
 pub mod tolerance;
 
+pub use plan::{
+    DEFAULT_STEPS, FULL_ANGLE_FROM_DEG, FULL_ANGLE_TO_DEG, Sweep, SweepData, run_sweep,
+};
 pub use sweep::{
     AngleScan, COLUMN_NAMES, Curves, PARALLEL_MIN_WORK, Spectrum, SweepError, Warning, angle_scan,
     angles_deg, spectrum, wavelengths_nm,

@@ -21,6 +21,7 @@
 
 pub mod file;
 pub mod notation;
+mod quantity;
 mod target;
 mod thickness;
 mod validate;
@@ -30,7 +31,8 @@ use serde::{Deserialize, Serialize};
 use crate::material::Material;
 
 pub use file::DesignFileError;
-pub use target::{Pol, Quantity, Target, TargetKind};
+pub use quantity::{Pol, Quantity};
+pub use target::{Target, TargetKind};
 pub use thickness::{nm_from_optical, nm_from_qwot, optical_nm, qwot, reference_index};
 pub use validate::{DesignError, ResolvedDesign};
 

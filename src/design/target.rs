@@ -2,27 +2,7 @@
 
 use serde::{Deserialize, Serialize};
 
-/// What a target constrains.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
-pub enum Quantity {
-    /// Reflectance (fraction).
-    R,
-    /// Transmittance (fraction).
-    T,
-    /// Absorptance (fraction).
-    A,
-}
-
-/// Polarisation a target applies to.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
-pub enum Pol {
-    /// s (TE) polarisation.
-    S,
-    /// p (TM) polarisation.
-    P,
-    /// The mean of s and p (unpolarised light).
-    Mean,
-}
+use super::quantity::{Pol, Quantity};
 
 /// How the computed value is compared with the goal.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]

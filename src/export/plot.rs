@@ -379,21 +379,12 @@ pub fn render_svg(spec: &PlotSpec, width_px: u32, height_px: u32) -> Result<Stri
     Ok(svg)
 }
 
-/// The plain name of a quantity, with its symbol.
-fn quantity_name(q: Quantity) -> &'static str {
-    match q {
-        Quantity::R => "Reflectance R",
-        Quantity::T => "Transmittance T",
-        Quantity::A => "Absorptance A",
-    }
-}
-
-fn pol_name(p: Pol) -> &'static str {
-    match p {
-        Pol::S => "s-polarised",
-        Pol::P => "p-polarised",
-        Pol::Mean => "mean of s and p",
-    }
+/// `text` with its first letter in upper case.
+fn capitalised(text: &str) -> String {
+    let mut c = text.chars();
+    c.next()
+        .map(|first| first.to_uppercase().chain(c).collect())
+        .unwrap_or_default()
 }
 
 /// A plot of one quantity over wavelength, in percent, for one or more designs: the first
@@ -439,7 +430,7 @@ pub fn spectrum_plot(designs: &[(&str, &Spectrum)], quantity: Quantity, pol: Pol
             colour: i,
         })
         .collect();
-    let mut title = format!("{}, {}", quantity_name(quantity), pol_name(pol));
+    let mut title = format!("{}, {}", capitalised(quantity.describe()), pol.describe());
     if same_aoi {
         // Writing to a String cannot fail.
         write!(title, ", {first_aoi}° incidence").ok();
@@ -450,7 +441,7 @@ pub fn spectrum_plot(designs: &[(&str, &Spectrum)], quantity: Quantity, pol: Pol
     PlotSpec {
         title,
         x_label: "Wavelength (nm)".into(),
-        y_label: format!("{} (%)", quantity_name(quantity)),
+        y_label: format!("{} (%)", capitalised(quantity.describe())),
         series,
         x_range: None,
         y_range: None,

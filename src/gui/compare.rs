@@ -12,7 +12,9 @@ use egui_plot::{Legend, Line, Plot, PlotPoint, PlotPoints};
 use crate::analysis::Spectrum;
 use crate::analysis::compare::{Figures, band_figures, difference};
 
-use super::compute::{Sweep, SweepCache, SweepResult};
+use crate::analysis::Sweep;
+
+use super::compute::{SweepCache, SweepResult};
 use super::designs::{DesignId, WindowCommand};
 use super::plots::number_ui;
 
@@ -106,7 +108,7 @@ impl CompareSettings {
     /// The sweep behind the table: the band at the chosen angle.
     #[must_use]
     pub fn band_sweep(&self) -> Sweep {
-        Sweep::Spectrum {
+        Sweep::Wavelength {
             from_nm: self.band_from_nm,
             to_nm: self.band_to_nm,
             step_nm: self.band_step_nm,

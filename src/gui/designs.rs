@@ -56,7 +56,7 @@ impl OpenDesign {
     #[must_use]
     pub fn label(&self) -> String {
         let mark = if self.doc.is_dirty() { " •" } else { "" };
-        format!("{}{mark}", self.doc.design.name)
+        format!("{}{mark}", self.doc.design().name)
     }
 
     /// Makes every cache compute inline (tests, screenshots) or not.
@@ -103,7 +103,7 @@ pub fn tabs_ui(
             ui.painter().rect_filled(rect, 2.0, d.colour);
             let text = RichText::new(d.label());
             let tab = ui.selectable_label(d.id == active, text);
-            let tab = match &d.doc.path {
+            let tab = match d.doc.path() {
                 Some(p) => tab.on_hover_text(p.display().to_string()),
                 None => tab.on_hover_text("not saved yet"),
             };

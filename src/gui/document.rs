@@ -2,7 +2,8 @@
 //!
 //! Panels never mutate the design: they push [`Command`]s, and [`Document::apply`] — the one
 //! mutator, testable without egui — checks and carries them out. A refused command leaves the
-//! document as it was and says why.
+//! document as it was and says why. Commands are of two kinds: [`Edit`]s change the design and
+//! become undo steps; the others move through the history or concern the file.
 //!
 //! Layer indices in commands are 0-based positions in [`Design::layers`] (layer 1, on the
 //! substrate, is index 0); messages name layers by their 1-based number, as the table does.
@@ -14,9 +15,9 @@ use crate::material::{Catalog, Material, MaterialError};
 
 use super::history::History;
 
-/// A change to the document, or a file action on it.
+/// A change to the design: each becomes (part of) one undo step.
 #[derive(Clone, Debug, PartialEq)]
-pub enum Command {
+pub enum Edit {
     /// Sets a layer's physical thickness (nm).
     SetThickness {
         /// 0-based layer index.
@@ -91,6 +92,21 @@ pub enum Command {
     },
     /// Removes one of the design's own materials; refused while anything uses it.
     RemoveMaterial(String),
+    /// Takes the result of background work (e.g. an optimised design) in place of the
+    /// design; refused when the design changed since the work started from `from_revision`.
+    Adopt {
+        /// The revision the work read.
+        from_revision: u64,
+        /// The design it produced.
+        design: Box<Design>,
+    },
+}
+
+/// What can be done to a document: an edit, a step through its history, or a file action.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Command {
+    /// Changes the design (one undo step).
+    Edit(Edit),
     /// Undoes the last step.
     Undo,
     /// Redoes the last undone step.
@@ -105,6 +121,12 @@ pub enum Command {
     Save,
     /// Saves to a new file, which becomes the document's file.
     SaveAs(PathBuf),
+}
+
+impl From<Edit> for Command {
+    fn from(e: Edit) -> Self {
+        Command::Edit(e)
+    }
 }
 
 /// Why a command was refused.
@@ -152,21 +174,33 @@ pub enum CommandError {
     /// A refused change to the material list.
     #[error("{0}")]
     Materials(String),
+    /// A result of background work for a design that has changed since.
+    #[error(
+        "the design changed while the work was running (revision {from_revision}, now \
+         {now}); the result was not applied"
+    )]
+    Stale {
+        /// The revision the work read.
+        from_revision: u64,
+        /// The revision now.
+        now: u64,
+    },
 }
 
-/// The design being edited, where it lives, and its history.
+/// The design being edited, where it lives, and its history. Only [`Document::apply`] changes
+/// it.
 #[derive(Clone, Debug)]
 pub struct Document {
     /// The design as it is now.
-    pub design: Design,
+    design: Design,
     /// The file it was opened from or last saved to.
-    pub path: Option<PathBuf>,
+    path: Option<PathBuf>,
     /// The design as last saved or opened, for the unsaved-changes mark.
-    pub saved: Design,
+    saved: Design,
     /// Undo/redo snapshots.
-    pub history: History,
+    history: History,
     /// Bumped on every change to `design`; caches key on it.
-    pub revision: u64,
+    revision: u64,
 }
 
 impl Document {
@@ -180,6 +214,42 @@ impl Document {
             path,
             revision: 0,
         }
+    }
+
+    /// The design as it is now.
+    #[must_use]
+    pub fn design(&self) -> &Design {
+        &self.design
+    }
+
+    /// The file it was opened from or last saved to.
+    #[must_use]
+    pub fn path(&self) -> Option<&Path> {
+        self.path.as_deref()
+    }
+
+    /// A number bumped on every change to the design; caches and background work key on it.
+    #[must_use]
+    pub fn revision(&self) -> u64 {
+        self.revision
+    }
+
+    /// Whether there is a step to undo.
+    #[must_use]
+    pub fn can_undo(&self) -> bool {
+        self.history.can_undo(&self.design)
+    }
+
+    /// Whether there is an undone step to redo.
+    #[must_use]
+    pub fn can_redo(&self) -> bool {
+        self.history.can_redo(&self.design)
+    }
+
+    /// Treats the design as it is as saved: the user chose to discard the changes, so the
+    /// next step must not ask about them again.
+    pub fn forget_unsaved_changes(&mut self) {
+        self.saved = self.design.clone();
     }
 
     /// Whether the design differs from the last saved or opened copy.
@@ -201,9 +271,12 @@ impl Document {
     }
 
     /// Carries out `cmd`. On `Err` the document is unchanged.
-    pub fn apply(&mut self, cmd: Command) -> Result<(), CommandError> {
+    pub fn apply(&mut self, cmd: impl Into<Command>) -> Result<(), CommandError> {
         let before_revision_design = self.design.clone();
-        let result = self.apply_inner(cmd);
+        let result = match cmd.into() {
+            Command::Edit(e) => self.apply_edit(e),
+            other => self.apply_lifecycle(other),
+        };
         if self.design != before_revision_design {
             self.revision += 1;
         }
@@ -219,39 +292,39 @@ impl Document {
         self.revision += 1;
     }
 
-    #[expect(clippy::too_many_lines, reason = "one arm per command reads best")]
-    fn apply_inner(&mut self, cmd: Command) -> Result<(), CommandError> {
-        match cmd {
-            Command::SetThickness { layer, nm } => {
+    #[expect(clippy::too_many_lines, reason = "one arm per edit reads best")]
+    fn apply_edit(&mut self, edit: Edit) -> Result<(), CommandError> {
+        match edit {
+            Edit::SetThickness { layer, nm } => {
                 self.check_layer(layer)?;
                 let nm =
                     Nm::new(nm).map_err(|_| bad("thickness (nm)", "finite and 0 or more", nm))?;
                 self.design.layers[layer].nm = nm;
             }
-            Command::SetQwot { layer, qwot } => {
+            Edit::SetQwot { layer, qwot } => {
                 self.check_layer(layer)?;
                 let mut d = self.design.clone();
                 d.set_layer_qwot(layer + 1, qwot)?;
                 self.design = d;
             }
-            Command::SetMaterial { layer, name } => {
+            Edit::SetMaterial { layer, name } => {
                 self.check_layer(layer)?;
                 self.check_material(&name, &format!("layer {}", layer + 1))?;
                 self.design.layers[layer].material = name;
             }
-            Command::InsertLayer { at, layer } => {
+            Edit::InsertLayer { at, layer } => {
                 if at > self.design.layers.len() {
                     return Err(self.no_layer(at));
                 }
                 self.check_material(&layer.material, "new layer")?;
                 self.design.layers.insert(at, layer);
             }
-            Command::DuplicateLayer(i) => {
+            Edit::DuplicateLayer(i) => {
                 self.check_layer(i)?;
                 let copy = self.design.layers[i].clone();
                 self.design.layers.insert(i + 1, copy);
             }
-            Command::RemoveLayers(mut list) => {
+            Edit::RemoveLayers(mut list) => {
                 list.sort_unstable();
                 list.dedup();
                 for &i in &list {
@@ -261,13 +334,13 @@ impl Document {
                     self.design.layers.remove(i);
                 }
             }
-            Command::MoveLayer { from, to } => {
+            Edit::MoveLayer { from, to } => {
                 self.check_layer(from)?;
                 self.check_layer(to)?;
                 let l = self.design.layers.remove(from);
                 self.design.layers.insert(to, l);
             }
-            Command::ScaleLayers { layers, factor } => {
+            Edit::ScaleLayers { layers, factor } => {
                 if !(factor.is_finite() && factor > 0.0) {
                     return Err(bad("scale factor", "a finite number above 0", factor));
                 }
@@ -280,23 +353,23 @@ impl Document {
                 }
                 self.design.layers = new;
             }
-            Command::ToggleLock(i) => {
+            Edit::ToggleLock(i) => {
                 self.check_layer(i)?;
                 self.design.layers[i].locked ^= true;
             }
-            Command::SetIncident(name) => {
+            Edit::SetIncident(name) => {
                 self.check_material(&name, "incident medium")?;
                 self.design.incident = name;
             }
-            Command::SetSubstrate(name) => {
+            Edit::SetSubstrate(name) => {
                 self.check_material(&name, "substrate")?;
                 self.design.substrate = name;
             }
-            Command::SetExit(name) => {
+            Edit::SetExit(name) => {
                 self.check_material(&name, "exit medium")?;
                 self.design.exit = name;
             }
-            Command::SetSubstrateMm(mm) => {
+            Edit::SetSubstrateMm(mm) => {
                 if let Some(v) = mm
                     && !(v.is_finite() && v > 0.0)
                 {
@@ -308,7 +381,7 @@ impl Document {
                 }
                 self.design.substrate_mm = mm;
             }
-            Command::SetReference(nm) => {
+            Edit::SetReference(nm) => {
                 if !(nm.is_finite() && nm > 0.0) {
                     return Err(bad(
                         "reference wavelength (nm)",
@@ -318,18 +391,37 @@ impl Document {
                 }
                 self.design.reference_nm = nm;
             }
-            Command::ReplaceLayers(layers) => {
+            Edit::ReplaceLayers(layers) => {
                 for (i, l) in layers.iter().enumerate() {
                     self.check_material(&l.material, &format!("layer {}", i + 1))?;
                 }
                 self.design.layers = layers;
             }
-            Command::SetName(name) => self.design.name = name,
-            Command::AddMaterial(m) => self.add_material(m)?,
-            Command::ReplaceMaterial { old_name, material } => {
+            Edit::SetName(name) => self.design.name = name,
+            Edit::AddMaterial(m) => self.add_material(m)?,
+            Edit::ReplaceMaterial { old_name, material } => {
                 self.replace_material(&old_name, material)?;
             }
-            Command::RemoveMaterial(name) => self.remove_material(&name)?,
+            Edit::RemoveMaterial(name) => self.remove_material(&name)?,
+            Edit::Adopt {
+                from_revision,
+                design,
+            } => {
+                if from_revision != self.revision {
+                    return Err(CommandError::Stale {
+                        from_revision,
+                        now: self.revision,
+                    });
+                }
+                self.design = *design;
+            }
+        }
+        Ok(())
+    }
+
+    fn apply_lifecycle(&mut self, cmd: Command) -> Result<(), CommandError> {
+        match cmd {
+            Command::Edit(e) => return self.apply_edit(e),
             Command::Undo => {
                 let d = self
                     .history
@@ -517,17 +609,16 @@ mod tests {
     #[test]
     fn thickness_is_checked() {
         let mut d = doc();
-        d.apply(Command::SetThickness { layer: 1, nm: 42.0 })
-            .unwrap();
+        d.apply(Edit::SetThickness { layer: 1, nm: 42.0 }).unwrap();
         assert_eq!(nms(&d), [10.0, 42.0, 30.0], "set");
         for bad in [-1.0, f64::NAN, f64::INFINITY] {
             let e = d
-                .apply(Command::SetThickness { layer: 0, nm: bad })
+                .apply(Edit::SetThickness { layer: 0, nm: bad })
                 .unwrap_err();
             assert!(e.to_string().contains("thickness"), "{e}");
         }
         let e = d
-            .apply(Command::SetThickness { layer: 3, nm: 1.0 })
+            .apply(Edit::SetThickness { layer: 3, nm: 1.0 })
             .unwrap_err();
         assert!(e.to_string().contains("no layer 4"), "{e}");
         assert_eq!(nms(&d), [10.0, 42.0, 30.0], "refusals change nothing");
@@ -536,7 +627,7 @@ mod tests {
     #[test]
     fn qwot_sets_nm_through_the_design() {
         let mut d = doc();
-        d.apply(Command::SetQwot {
+        d.apply(Edit::SetQwot {
             layer: 0,
             qwot: 1.0,
         })
@@ -552,7 +643,7 @@ mod tests {
             "round trip"
         );
         assert!(
-            d.apply(Command::SetQwot {
+            d.apply(Edit::SetQwot {
                 layer: 0,
                 qwot: -2.0
             })
@@ -564,23 +655,23 @@ mod tests {
     #[test]
     fn insert_duplicate_remove_move_scale() {
         let mut d = doc();
-        d.apply(Command::InsertLayer {
+        d.apply(Edit::InsertLayer {
             at: 3,
             layer: Layer::new("L", Nm::new(5.0).unwrap()),
         })
         .unwrap();
         assert_eq!(nms(&d), [10.0, 20.0, 30.0, 5.0], "append");
-        d.apply(Command::DuplicateLayer(0)).unwrap();
+        d.apply(Edit::DuplicateLayer(0)).unwrap();
         assert_eq!(nms(&d), [10.0, 10.0, 20.0, 30.0, 5.0], "duplicate");
-        d.apply(Command::RemoveLayers(vec![4, 0, 0])).unwrap();
+        d.apply(Edit::RemoveLayers(vec![4, 0, 0])).unwrap();
         assert_eq!(
             nms(&d),
             [10.0, 20.0, 30.0],
             "remove, duplicates in the list ignored"
         );
-        d.apply(Command::MoveLayer { from: 0, to: 2 }).unwrap();
+        d.apply(Edit::MoveLayer { from: 0, to: 2 }).unwrap();
         assert_eq!(nms(&d), [20.0, 30.0, 10.0], "move");
-        d.apply(Command::ScaleLayers {
+        d.apply(Edit::ScaleLayers {
             layers: vec![0, 2],
             factor: 1.5,
         })
@@ -588,7 +679,7 @@ mod tests {
         assert_eq!(nms(&d), [30.0, 30.0, 15.0], "scale");
         for f in [0.0, -1.0, f64::NAN] {
             assert!(
-                d.apply(Command::ScaleLayers {
+                d.apply(Edit::ScaleLayers {
                     layers: vec![0],
                     factor: f
                 })
@@ -597,12 +688,12 @@ mod tests {
             );
         }
         assert!(
-            d.apply(Command::RemoveLayers(vec![0, 9])).is_err(),
+            d.apply(Edit::RemoveLayers(vec![0, 9])).is_err(),
             "out of range"
         );
         assert_eq!(d.design.layers.len(), 3, "nothing removed on refusal");
         assert!(
-            d.apply(Command::InsertLayer {
+            d.apply(Edit::InsertLayer {
                 at: 0,
                 layer: Layer::new("Unobtainium", Nm::ZERO)
             })
@@ -614,21 +705,18 @@ mod tests {
     #[test]
     fn media_and_reference_are_checked() {
         let mut d = doc();
-        d.apply(Command::SetSubstrate("N-BK7".into())).unwrap();
+        d.apply(Edit::SetSubstrate("N-BK7".into())).unwrap();
         assert_eq!(d.design.substrate, "N-BK7", "built-in");
         let e = d
-            .apply(Command::SetExit("Nope".into()))
+            .apply(Edit::SetExit("Nope".into()))
             .unwrap_err()
             .to_string();
         assert!(e.starts_with("exit medium: unknown material"), "{e}");
-        assert!(
-            d.apply(Command::SetSubstrateMm(Some(0.0))).is_err(),
-            "zero mm"
-        );
-        d.apply(Command::SetSubstrateMm(Some(2.0))).unwrap();
+        assert!(d.apply(Edit::SetSubstrateMm(Some(0.0))).is_err(), "zero mm");
+        d.apply(Edit::SetSubstrateMm(Some(2.0))).unwrap();
         assert_eq!(d.design.substrate_mm, Some(2.0), "mm");
         assert!(
-            d.apply(Command::SetReference(f64::NAN)).is_err(),
+            d.apply(Edit::SetReference(f64::NAN)).is_err(),
             "NaN reference"
         );
     }
@@ -638,13 +726,44 @@ mod tests {
         let mut d = doc();
         assert!(!d.is_dirty(), "fresh");
         let r = d.revision;
-        d.apply(Command::ToggleLock(0)).unwrap();
+        d.apply(Edit::ToggleLock(0)).unwrap();
         assert!(d.is_dirty() && d.revision > r, "changed");
         assert!(d.title().contains('•'), "{}", d.title());
         d.apply(Command::Undo).unwrap();
         assert!(!d.is_dirty(), "undone");
         d.apply(Command::Redo).unwrap();
         assert!(d.design.layers[0].locked, "redone");
+    }
+
+    #[test]
+    fn a_result_is_adopted_only_for_the_revision_it_was_computed_from() {
+        let mut d = doc();
+        let from = d.revision();
+        let mut better = d.design().clone();
+        better.layers[0].nm = Nm::new(11.0).unwrap();
+        d.apply(Edit::ToggleLock(2)).unwrap();
+        d.commit();
+        let e = d
+            .apply(Edit::Adopt {
+                from_revision: from,
+                design: Box::new(better.clone()),
+            })
+            .unwrap_err();
+        assert!(matches!(e, CommandError::Stale { .. }), "{e}");
+        assert_eq!(nms(&d), [10.0, 20.0, 30.0], "the edited design is kept");
+        d.apply(Edit::Adopt {
+            from_revision: d.revision(),
+            design: Box::new(better),
+        })
+        .unwrap();
+        assert_eq!(nms(&d), [11.0, 20.0, 30.0], "adopted");
+        d.commit();
+        d.apply(Command::Undo).unwrap();
+        assert_eq!(nms(&d), [10.0, 20.0, 30.0], "one undo step takes it back");
+        assert!(
+            d.design().layers[2].locked,
+            "to the design before the result"
+        );
     }
 
     #[test]
@@ -656,7 +775,7 @@ mod tests {
             matches!(d.apply(Command::Save), Err(CommandError::NoPath)),
             "no path"
         );
-        d.apply(Command::SetName("Saved one".into())).unwrap();
+        d.apply(Edit::SetName("Saved one".into())).unwrap();
         d.apply(Command::SaveAs(path.clone())).unwrap();
         assert!(!d.is_dirty(), "saved");
         assert_eq!(file::load(&path).unwrap(), d.design, "on disk");
@@ -679,20 +798,20 @@ mod tests {
     fn materials_are_added_renamed_and_removed_safely() {
         let mut d = doc();
         let m = Material::user("M", Model::Constant { n: 1.7, k: 0.0 });
-        d.apply(Command::AddMaterial(m.clone())).unwrap();
-        assert!(d.apply(Command::AddMaterial(m)).is_err(), "duplicate");
+        d.apply(Edit::AddMaterial(m.clone())).unwrap();
+        assert!(d.apply(Edit::AddMaterial(m)).is_err(), "duplicate");
         let e = d
-            .apply(Command::RemoveMaterial("H".into()))
+            .apply(Edit::RemoveMaterial("H".into()))
             .unwrap_err()
             .to_string();
         assert!(e.contains("layer 1") && e.contains("layer 3"), "{e}");
-        d.apply(Command::ReplaceMaterial {
+        d.apply(Edit::ReplaceMaterial {
             old_name: "H".into(),
             material: Material::user("Hi", Model::Constant { n: 2.1, k: 0.0 }),
         })
         .unwrap();
         assert_eq!(d.design.layers[0].material, "Hi", "layers follow a rename");
-        d.apply(Command::RemoveMaterial("M".into())).unwrap();
+        d.apply(Edit::RemoveMaterial("M".into())).unwrap();
         assert_eq!(d.design.materials.len(), 2, "removed");
     }
 }

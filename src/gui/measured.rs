@@ -8,8 +8,8 @@ use std::path::{Path, PathBuf};
 
 use egui::{Color32, RichText};
 
+use super::chooser::FileRequest;
 use super::compute::{SweepCache, SweepResult};
-use super::handoff::FileRequest;
 use super::plots::{MeasuredOverlay, ViewSettings};
 use crate::analysis::Spectrum;
 use crate::analysis::measured::{MeasuredCurve, ValueScale, parse_measured_csv, rms_difference};

@@ -10,7 +10,9 @@ use crate::design::Design;
 use crate::material::EV_UM;
 use crate::optics::Side;
 
-use super::compute::{Sweep, SweepCache, SweepResult};
+use crate::analysis::Sweep;
+
+use super::compute::{SweepCache, SweepResult};
 use super::theme;
 
 /// The caution shown whenever optical density is plotted.
@@ -59,7 +61,7 @@ pub enum YAxis {
 /// Which curves to draw.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 #[expect(clippy::struct_excessive_bools, reason = "one check box each")]
-pub struct Curves {
+pub struct CurvePicks {
     /// Reflectance.
     pub r: bool,
     /// Transmittance.
@@ -74,7 +76,7 @@ pub struct Curves {
     pub mean: bool,
 }
 
-impl Default for Curves {
+impl Default for CurvePicks {
     fn default() -> Self {
         Self {
             r: true,
@@ -101,7 +103,7 @@ pub struct ViewSettings {
     /// Side the light comes from (both views).
     pub side: Side,
     /// Spectrum curves.
-    pub spectrum_curves: Curves,
+    pub spectrum_curves: CurvePicks,
     /// Spectrum horizontal axis.
     pub x_axis: XAxis,
     /// Spectrum vertical axis.
@@ -111,7 +113,7 @@ pub struct ViewSettings {
     /// Angle step (degrees).
     pub angle_step_deg: f64,
     /// Angle-view curves.
-    pub angle_curves: Curves,
+    pub angle_curves: CurvePicks,
 }
 
 impl ViewSettings {
@@ -119,27 +121,23 @@ impl ViewSettings {
     /// 400 steps, normal incidence; the angle view at the reference wavelength.
     #[must_use]
     pub fn for_design(design: &Design) -> Self {
-        let r = if design.reference_nm.is_finite() && design.reference_nm > 0.0 {
-            design.reference_nm
-        } else {
-            550.0
-        };
-        let (from, to) = (0.7 * r, 1.5 * r);
+        let r = Sweep::centre_nm(design.reference_nm);
+        let (from, to) = Sweep::default_span_nm(r);
         Self {
             from_nm: from,
             to_nm: to,
-            step_nm: (to - from) / 400.0,
+            step_nm: (to - from) / crate::analysis::DEFAULT_STEPS,
             aoi_deg: 0.0,
             side: Side::Front,
-            spectrum_curves: Curves::default(),
+            spectrum_curves: CurvePicks::default(),
             x_axis: XAxis::Wavelength,
             y_axis: YAxis::Percent,
             angle_wavelength_nm: r,
             angle_step_deg: 0.5,
-            angle_curves: Curves {
+            angle_curves: CurvePicks {
                 s: true,
                 p: true,
-                ..Curves::default()
+                ..CurvePicks::default()
             },
         }
     }
@@ -147,7 +145,7 @@ impl ViewSettings {
     /// The spectrum sweep these settings ask for.
     #[must_use]
     pub fn spectrum_sweep(&self) -> Sweep {
-        Sweep::Spectrum {
+        Sweep::Wavelength {
             from_nm: self.from_nm,
             to_nm: self.to_nm,
             step_nm: self.step_nm,
@@ -159,13 +157,7 @@ impl ViewSettings {
     /// The angle sweep these settings ask for (0–89°).
     #[must_use]
     pub fn angle_sweep(&self) -> Sweep {
-        Sweep::Angles {
-            wavelength_nm: self.angle_wavelength_nm,
-            from_deg: 0.0,
-            to_deg: 89.0,
-            step_deg: self.angle_step_deg,
-            side: self.side,
-        }
+        Sweep::full_angles(self.angle_wavelength_nm, self.angle_step_deg, self.side)
     }
 }
 
@@ -254,12 +246,12 @@ pub struct PlotCache {
 
 /// What the points were built from: the active sweep's generation, the display choices, and
 /// each overlay's name, colour and generation.
-type PlotKey = (u64, Curves, XAxis, YAxis, Vec<(String, Color32, u64)>);
+type PlotKey = (u64, CurvePicks, XAxis, YAxis, Vec<(String, Color32, u64)>);
 
 /// The series of one result; `tint` names and colours an overlaid design's curves.
 fn build_series(
     result: &SweepResult,
-    curves: Curves,
+    curves: CurvePicks,
     x: impl Fn(f64) -> f64,
     y: YAxis,
     tint: Option<(&str, Color32)>,
@@ -333,7 +325,7 @@ fn build_series(
     out
 }
 
-fn curve_toggles_ui(ui: &mut egui::Ui, c: &mut Curves, with_rta: bool) {
+fn curve_toggles_ui(ui: &mut egui::Ui, c: &mut CurvePicks, with_rta: bool) {
     if with_rta {
         ui.checkbox(&mut c.r, "R");
         ui.checkbox(&mut c.t, "T");
@@ -421,7 +413,7 @@ fn refresh(
     cache: &mut PlotCache,
     sweeps: &SweepCache,
     overlays: &[Overlay<'_>],
-    curves: Curves,
+    curves: CurvePicks,
     x: XAxis,
     y: YAxis,
     angle: bool,

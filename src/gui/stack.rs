@@ -1,6 +1,6 @@
 //! The left panel: the stack's cross-section, the layer table, the media and the notation box.
 //!
-//! Reads the design, pushes [`Command`]s; never mutates the design itself.
+//! Reads the design, pushes [`Edit`]s; never mutates the design itself.
 
 use std::collections::{BTreeMap, BTreeSet};
 
@@ -10,7 +10,7 @@ use crate::design::notation::build_layers;
 use crate::design::{Design, Layer, Nm, nm_from_qwot};
 use crate::material::{Catalog, Material};
 
-use super::document::Command;
+use super::document::Edit;
 use super::theme;
 
 /// Height of the cross-section strip and of the table's scroll area (points).
@@ -151,7 +151,7 @@ fn colour_of(catalog: &Catalog<'_>, name: &str, reference_nm: f64) -> Color32 {
 }
 
 /// The whole left panel.
-pub fn stack_ui(ui: &mut egui::Ui, design: &Design, state: &mut StackUi, out: &mut Vec<Command>) {
+pub fn stack_ui(ui: &mut egui::Ui, design: &Design, state: &mut StackUi, out: &mut Vec<Edit>) {
     state.clamp_selection(design.layers.len());
     let catalog = Catalog::new(&design.materials);
     egui::ScrollArea::vertical().show(ui, |ui| {
@@ -169,7 +169,7 @@ pub fn stack_ui(ui: &mut egui::Ui, design: &Design, state: &mut StackUi, out: &m
     });
 }
 
-fn design_row_ui(ui: &mut egui::Ui, design: &Design, out: &mut Vec<Command>) {
+fn design_row_ui(ui: &mut egui::Ui, design: &Design, out: &mut Vec<Edit>) {
     egui::Grid::new("design-row").num_columns(2).show(ui, |ui| {
         let l = ui.label("Name");
         let mut name = design.name.clone();
@@ -178,7 +178,7 @@ fn design_row_ui(ui: &mut egui::Ui, design: &Design, out: &mut Vec<Command>) {
             .labelled_by(l.id)
             .changed()
         {
-            out.push(Command::SetName(name));
+            out.push(Edit::SetName(name));
         }
         ui.end_row();
         let l = ui.label("Reference wavelength (nm)");
@@ -188,7 +188,7 @@ fn design_row_ui(ui: &mut egui::Ui, design: &Design, out: &mut Vec<Command>) {
             .labelled_by(l.id)
             .changed()
         {
-            out.push(Command::SetReference(r));
+            out.push(Edit::SetReference(r));
         }
         ui.end_row();
     });
@@ -199,7 +199,7 @@ fn media_ui(
     design: &Design,
     catalog: &Catalog<'_>,
     state: &mut StackUi,
-    out: &mut Vec<Command>,
+    out: &mut Vec<Edit>,
 ) {
     egui::Grid::new("media").num_columns(2).show(ui, |ui| {
         ui.label("Incident medium");
@@ -211,7 +211,7 @@ fn media_ui(
             catalog,
             &mut state.filter,
         ) {
-            out.push(Command::SetIncident(n));
+            out.push(Edit::SetIncident(n));
         }
         ui.end_row();
         ui.label("Substrate");
@@ -224,7 +224,7 @@ fn media_ui(
                 catalog,
                 &mut state.filter,
             ) {
-                out.push(Command::SetSubstrate(n));
+                out.push(Edit::SetSubstrate(n));
             }
             let mut back = design.substrate_mm.is_some();
             if ui
@@ -235,7 +235,7 @@ fn media_ui(
                 )
                 .changed()
             {
-                out.push(Command::SetSubstrateMm(back.then_some(1.0)));
+                out.push(Edit::SetSubstrateMm(back.then_some(1.0)));
             }
             if let Some(mut mm) = design.substrate_mm {
                 let r = ui
@@ -247,7 +247,7 @@ fn media_ui(
                     )
                     .accessible_name("Substrate thickness (mm)");
                 if r.changed() {
-                    out.push(Command::SetSubstrateMm(Some(mm)));
+                    out.push(Edit::SetSubstrateMm(Some(mm)));
                 }
             }
         });
@@ -261,7 +261,7 @@ fn media_ui(
             catalog,
             &mut state.filter,
         ) {
-            out.push(Command::SetExit(n));
+            out.push(Edit::SetExit(n));
         }
         ui.end_row();
     });
@@ -357,7 +357,7 @@ fn layer_table_ui(
     design: &Design,
     catalog: &Catalog<'_>,
     state: &mut StackUi,
-    out: &mut Vec<Command>,
+    out: &mut Vec<Edit>,
 ) {
     ui.label(
         RichText::new(format!(
@@ -393,7 +393,7 @@ fn layer_row_ui(
     design: &Design,
     catalog: &Catalog<'_>,
     state: &mut StackUi,
-    out: &mut Vec<Command>,
+    out: &mut Vec<Edit>,
     i: usize,
 ) {
     let layer = &design.layers[i];
@@ -408,7 +408,7 @@ fn layer_row_ui(
     if let Some(from) = r.dnd_release_payload::<usize>()
         && *from != i
     {
-        out.push(Command::MoveLayer { from: *from, to: i });
+        out.push(Edit::MoveLayer { from: *from, to: i });
     }
     if r.dnd_hover_payload::<usize>()
         .is_some_and(|from| *from != i)
@@ -440,7 +440,7 @@ fn layer_row_ui(
         catalog,
         &mut state.filter,
     ) {
-        out.push(Command::SetMaterial { layer: i, name: n });
+        out.push(Edit::SetMaterial { layer: i, name: n });
     }
     let mut nm = layer.nm.get();
     if ui
@@ -453,7 +453,7 @@ fn layer_row_ui(
         .accessible_name(format!("Layer {no} nm"))
         .changed()
     {
-        out.push(Command::SetThickness { layer: i, nm });
+        out.push(Edit::SetThickness { layer: i, nm });
     }
     match design.layer_qwot(no) {
         Ok(q) => {
@@ -468,7 +468,7 @@ fn layer_row_ui(
                 .accessible_name(format!("Layer {no} QWOT"))
                 .changed()
             {
-                out.push(Command::SetQwot { layer: i, qwot: q2 });
+                out.push(Edit::SetQwot { layer: i, qwot: q2 });
             }
         }
         Err(e) => {
@@ -483,7 +483,7 @@ fn layer_row_ui(
         .on_hover_text("locked layers are left alone by optimisation")
         .changed()
     {
-        out.push(Command::ToggleLock(i));
+        out.push(Edit::ToggleLock(i));
     }
 }
 
@@ -512,7 +512,7 @@ fn buttons_ui(
     design: &Design,
     catalog: &Catalog<'_>,
     state: &mut StackUi,
-    out: &mut Vec<Command>,
+    out: &mut Vec<Edit>,
 ) {
     let n = design.layers.len();
     let sel: Vec<usize> = state.selected.iter().copied().collect();
@@ -524,7 +524,7 @@ fn buttons_ui(
             .clicked()
         {
             let layer = new_layer(design, catalog, n.checked_sub(1));
-            out.push(Command::InsertLayer { at: n, layer });
+            out.push(Edit::InsertLayer { at: n, layer });
             state.selected = BTreeSet::from([n]);
             state.anchor = Some(n);
         }
@@ -535,7 +535,7 @@ fn buttons_ui(
             && let Some(&at) = sel.first()
         {
             let layer = new_layer(design, catalog, at.checked_sub(1));
-            out.push(Command::InsertLayer { at, layer });
+            out.push(Edit::InsertLayer { at, layer });
             state.selected = BTreeSet::from([at]);
             state.anchor = Some(at);
         }
@@ -544,11 +544,11 @@ fn buttons_ui(
             .clicked()
         {
             for &i in sel.iter().rev() {
-                out.push(Command::DuplicateLayer(i));
+                out.push(Edit::DuplicateLayer(i));
             }
         }
         if ui.add_enabled(any, egui::Button::new("Delete")).clicked() {
-            out.push(Command::RemoveLayers(sel.clone()));
+            out.push(Edit::RemoveLayers(sel.clone()));
             state.selected.clear();
             state.anchor = None;
         }
@@ -559,7 +559,7 @@ fn buttons_ui(
             .clicked()
         {
             for &i in sel.iter().rev() {
-                out.push(Command::MoveLayer { from: i, to: i + 1 });
+                out.push(Edit::MoveLayer { from: i, to: i + 1 });
             }
             state.selected = sel.iter().map(|i| i + 1).collect();
         }
@@ -570,7 +570,7 @@ fn buttons_ui(
             .clicked()
         {
             for &i in &sel {
-                out.push(Command::MoveLayer { from: i, to: i - 1 });
+                out.push(Edit::MoveLayer { from: i, to: i - 1 });
             }
             state.selected = sel.iter().map(|i| i - 1).collect();
         }
@@ -588,7 +588,7 @@ fn buttons_ui(
             )
             .labelled_by(l.id);
             if ui.button("Apply scale").clicked() {
-                out.push(Command::ScaleLayers {
+                out.push(Edit::ScaleLayers {
                     layers: sel.clone(),
                     factor: state.scale_factor,
                 });
@@ -606,7 +606,7 @@ fn notation_ui(
     design: &Design,
     catalog: &Catalog<'_>,
     state: &mut StackUi,
-    out: &mut Vec<Command>,
+    out: &mut Vec<Edit>,
 ) {
     ui.strong("Stack notation");
     ui.label(RichText::new("substrate side first; e.g. (HL)^4 H, 2L, L:85nm").weak());
@@ -628,7 +628,7 @@ fn notation_ui(
                 Ok(layers) => {
                     state.notation_error = None;
                     state.selected.clear();
-                    out.push(Command::ReplaceLayers(layers));
+                    out.push(Edit::ReplaceLayers(layers));
                 }
                 Err(e) => state.notation_error = Some(e.to_string()),
             }

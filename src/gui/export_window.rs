@@ -2,24 +2,19 @@
 //! layer report (CSV, Markdown, HTML), written through [`crate::export`].
 //!
 //! Nothing here computes optics or formats files: the numbers come from
-//! [`crate::analysis::spectrum`] and [`crate::analysis::angle_scan`] with the view's settings
-//! (the same calls the window's plots and the command line make), and the bytes from the
-//! export functions. Files are written with [`crate::export::write_atomic`].
+//! [`crate::analysis::run_sweep`] with the views' own [`Sweep`]s (range, step, angle and the
+//! side the light comes from — the call the window's plots and the command line make), and the
+//! bytes from the export functions. Files are written with [`crate::export::write_atomic`].
 
 use std::path::{Path, PathBuf};
 
 use egui::{DragValue, RichText};
 
+use super::chooser::FileRequest;
 use super::plots::{ViewSettings, YAxis};
-use crate::analysis::{self, AngleScan, Spectrum};
+use crate::analysis::{self, Spectrum, Sweep, SweepData};
 use crate::design::{Design, Pol, Quantity};
 use crate::export::{self, plot, report::LayerReport};
-use crate::optics::Side;
-
-/// First angle of the exported angle table (degrees), as in the angle view.
-const ANGLE_FROM_DEG: f64 = 0.0;
-/// Last angle of the exported angle table (degrees), as in the angle view.
-const ANGLE_TO_DEG: f64 = 89.0;
 
 /// An image format.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -115,25 +110,10 @@ impl ExportKind {
     }
 }
 
-/// A file dialog to show on the window's dialog thread.
-#[derive(Clone, Debug, PartialEq, Eq)]
-pub struct FileRequest {
-    /// Ask for a file to write (else pick an existing one).
-    pub save: bool,
-    /// The filter's name, e.g. "CSV table".
-    pub filter_name: String,
-    /// The filter's extensions, without dots.
-    pub extensions: Vec<String>,
-    /// The folder to start in.
-    pub directory: Option<PathBuf>,
-    /// The suggested file name (save dialogs).
-    pub file_name: Option<String>,
-}
-
 /// What the window around the export panel must do.
 #[derive(Clone, Debug, PartialEq, Eq)]
-pub enum HandoffAction {
-    /// Ask for the file to write; the answer goes to [`HandoffState::export_to`].
+pub enum ExportAction {
+    /// Ask for the file to write; the answer goes to [`ExportState::export_to`].
     ChooseFile(FileRequest),
 }
 
@@ -150,7 +130,7 @@ pub struct ExportInputs<'a> {
 
 /// The export window's state.
 #[derive(Clone, Debug, PartialEq)]
-pub struct HandoffState {
+pub struct ExportState {
     /// Whether the window is open.
     pub open: bool,
     /// What to write.
@@ -163,7 +143,7 @@ pub struct HandoffState {
     pub last: Option<Result<PathBuf, String>>,
 }
 
-impl Default for HandoffState {
+impl Default for ExportState {
     fn default() -> Self {
         Self {
             open: false,
@@ -175,7 +155,7 @@ impl Default for HandoffState {
     }
 }
 
-impl HandoffState {
+impl ExportState {
     /// Writes the chosen export to `path` (a missing extension is added) and remembers the
     /// outcome for the window. Returns the file written, or the error as shown.
     pub fn export_to(&mut self, inputs: &ExportInputs<'_>, path: &Path) -> Result<PathBuf, String> {
@@ -241,21 +221,18 @@ pub fn shown_curve(view: &ViewSettings) -> (Quantity, Pol) {
     (q, p)
 }
 
-/// The spectrum with the view's range, step and angle, as the spectrum view computes it.
-pub fn view_spectrum(design: &Design, view: &ViewSettings) -> Result<Spectrum, String> {
+/// Runs one of the views' sweeps on `design`, as the view computes it.
+pub fn run_view_sweep(design: &Design, sweep: &Sweep) -> Result<SweepData, String> {
     let resolved = design.resolve().map_err(|e| e.to_string())?;
-    let wl = analysis::wavelengths_nm(view.from_nm, view.to_nm, view.step_nm)
-        .map_err(|e| format!("wavelength range: {e}"))?;
-    analysis::spectrum(&resolved, &wl, view.aoi_deg, Side::Front).map_err(|e| e.to_string())
+    analysis::run_sweep(&resolved, sweep).map_err(|e| format!("{}: {e}", sweep.range_name()))
 }
 
-/// The angle scan with the view's wavelength and step, as the angle view computes it.
-pub fn view_angles(design: &Design, view: &ViewSettings) -> Result<AngleScan, String> {
-    let resolved = design.resolve().map_err(|e| e.to_string())?;
-    let a = analysis::angles_deg(ANGLE_FROM_DEG, ANGLE_TO_DEG, view.angle_step_deg)
-        .map_err(|e| format!("angle range: {e}"))?;
-    analysis::angle_scan(&resolved, view.angle_wavelength_nm, &a, Side::Front)
-        .map_err(|e| e.to_string())
+/// The spectrum view's sweep on `design`.
+fn view_spectrum(design: &Design, view: &ViewSettings) -> Result<Spectrum, String> {
+    match run_view_sweep(design, &view.spectrum_sweep())? {
+        SweepData::Spectrum(s) => Ok(s),
+        SweepData::Angles(_) => Err("the spectrum view's sweep is not over wavelength".into()),
+    }
 }
 
 /// The plot image of the spectrum view's curve, with the safety caution when the design's name
@@ -288,7 +265,11 @@ fn export_bytes(
         }
         ExportKind::AngleCsv => {
             let mut out = Vec::new();
-            export::csv::write_angles(&mut out, &view_angles(d, view)?).map_err(csv_err)?;
+            match run_view_sweep(d, &view.angle_sweep())? {
+                SweepData::Angles(a) => export::csv::write_angles(&mut out, &a),
+                SweepData::Spectrum(s) => export::csv::write_spectrum(&mut out, &s),
+            }
+            .map_err(csv_err)?;
             Ok(out)
         }
         ExportKind::Image(_) => {
@@ -319,28 +300,12 @@ fn export_bytes(
     }
 }
 
-fn quantity_text(q: Quantity) -> &'static str {
-    match q {
-        Quantity::R => "reflectance R",
-        Quantity::T => "transmittance T",
-        Quantity::A => "absorptance A",
-    }
-}
-
-fn pol_text(p: Pol) -> &'static str {
-    match p {
-        Pol::S => "s-polarised",
-        Pol::P => "p-polarised",
-        Pol::Mean => "mean of s and p",
-    }
-}
-
 /// The export panel's contents. Returns the file dialog to show when Save… is pressed.
-pub fn handoff_ui(
+pub fn export_ui(
     ui: &mut egui::Ui,
-    state: &mut HandoffState,
+    state: &mut ExportState,
     inputs: &ExportInputs<'_>,
-) -> Option<HandoffAction> {
+) -> Option<ExportAction> {
     let view = inputs.view;
     let k = &mut state.kind;
     ui.label("What to export:");
@@ -358,16 +323,14 @@ pub fn handoff_ui(
     match &mut state.kind {
         ExportKind::SpectrumCsv => {
             ui.label(format!(
-                "R, T, A (s, p and mean) from {} to {} nm in steps of {} nm at {}° incidence, \
-                 as in the spectrum view.",
-                view.from_nm, view.to_nm, view.step_nm, view.aoi_deg
+                "R, T, A (s, p and mean), {}, as in the spectrum view.",
+                view.spectrum_sweep()
             ));
         }
         ExportKind::AngleCsv => {
             ui.label(format!(
-                "R, T, A (s, p and mean) from {ANGLE_FROM_DEG}° to {ANGLE_TO_DEG}° in steps of \
-                 {}° at {} nm, as in the angle view.",
-                view.angle_step_deg, view.angle_wavelength_nm
+                "R, T, A (s, p and mean), {}, as in the angle view.",
+                view.angle_sweep()
             ));
         }
         ExportKind::Image(f) => {
@@ -393,12 +356,10 @@ pub fn handoff_ui(
             });
             let (q, p) = shown_curve(view);
             ui.label(format!(
-                "Plots {}, {}, {} to {} nm at {}° incidence, as in the spectrum view.",
-                quantity_text(q),
-                pol_text(p),
-                view.from_nm,
-                view.to_nm,
-                view.aoi_deg
+                "Plots {}, {}, {}, as in the spectrum view.",
+                q.describe(),
+                p.describe(),
+                view.spectrum_sweep()
             ));
             if view.y_axis == YAxis::OpticalDensity {
                 ui.label(
@@ -423,7 +384,7 @@ pub fn handoff_ui(
     ui.separator();
     let mut action = None;
     if ui.button("Save…").clicked() {
-        action = Some(HandoffAction::ChooseFile(state.file_request(inputs)));
+        action = Some(ExportAction::ChooseFile(state.file_request(inputs)));
     }
     match &state.last {
         Some(Ok(p)) => {
@@ -438,11 +399,11 @@ pub fn handoff_ui(
 }
 
 /// The export window, when open.
-pub fn handoff_window(
+pub fn export_window(
     ctx: &egui::Context,
-    state: &mut HandoffState,
+    state: &mut ExportState,
     inputs: &ExportInputs<'_>,
-) -> Option<HandoffAction> {
+) -> Option<ExportAction> {
     if !state.open {
         return None;
     }
@@ -451,7 +412,7 @@ pub fn handoff_window(
     egui::Window::new("Export")
         .open(&mut open)
         .default_width(460.0)
-        .show(ctx, |ui| action = handoff_ui(ui, state, inputs));
+        .show(ctx, |ui| action = export_ui(ui, state, inputs));
     state.open = open;
     action
 }
