@@ -7,8 +7,7 @@
 
 pub mod interp;
 mod text;
+mod units;
 
-pub use text::{
-    GUESS_UM_BELOW, Layout, Row, Separator, TableError, TextTable, WavelengthUnit, choose_unit,
-    read_text_table, unit_in_header,
-};
+pub use text::{Layout, Row, Separator, TableError, TextTable, read_text_table};
+pub use units::{GUESS_UM_BELOW, WavelengthUnit, choose_unit, unit_in_header};
