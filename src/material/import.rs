@@ -595,9 +595,14 @@ mod tests {
             "\u{feff}",
             "1,2,3,\n",
             "µm\n",
-            "1 ,  2\n3 , 4",
         ] {
-            let _ = parse_nk_csv(text, WavelengthUnit::Auto);
+            assert!(
+                parse_nk_csv(text, WavelengthUnit::Auto).is_err(),
+                "{text:?} is no table"
+            );
         }
+        // Spaces around the separators are allowed (and values below 50 read as µm).
+        let t = ok("1 ,  2\n3 , 4", WavelengthUnit::Auto);
+        assert_rows(&t.rows, &[(1000.0, 2.0, 0.0), (3000.0, 4.0, 0.0)]);
     }
 }
