@@ -63,6 +63,7 @@ fn design(layers: usize) -> ResolvedDesign {
         substrate_mm: None,
         materials: vec![high, low],
         layers,
+        back_layers: Vec::new(),
     }
 }
 

@@ -7,11 +7,12 @@ use stackwise::analysis::{spectrum, wavelengths_nm};
 use stackwise::design::file;
 use stackwise::optics::Side;
 
-const EXAMPLES: [&str; 4] = [
+const EXAMPLES: [&str; 5] = [
     "designs/camera-window-ar.ron",
     "designs/laser-mirror-1064-45.ron",
     "designs/shortpass-550.ron",
     "designs/protected-silver-mirror.ron",
+    "designs/window-ar-both-faces.ron",
 ];
 
 fn here(rel: &str) -> PathBuf {

@@ -147,6 +147,22 @@ enum Expect {
 use Expect::{Load, Validate};
 
 const BROKEN: &[(&str, Expect)] = &[
+    (
+        "back_layer_negative_thickness.ron",
+        Load(Some(15), "thickness -20 nm is not allowed"),
+    ),
+    (
+        "back_layer_unknown_field.ron",
+        Load(Some(15), "field named `lock` in `Layer`"),
+    ),
+    (
+        "back_layer_unknown_material.ron",
+        Validate("back layer 2: unknown material \"Mgf2\""),
+    ),
+    (
+        "back_layers_without_substrate_mm.ron",
+        Validate("back_layers needs a thick substrate"),
+    ),
     ("comment_only.ron", Load(Some(1), "the file ends too soon")),
     (
         "duplicate_material.ron",

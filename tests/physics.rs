@@ -3,8 +3,8 @@
 //! Sources of the check values: Born & Wolf, *Principles of Optics* (Fresnel equations,
 //! Brewster and critical angles, TIR phase, §1.5), Macleod, *Thin-Film Optical Filters*
 //! (single layers, quarter-wave stacks, two-layer AR, ch. 2–5). The digits were computed from
-//! those closed forms in double precision (shared/reference/physics-checks.md, tag [C]); where a
-//! value is the closed form itself it is evaluated in the test.
+//! those closed forms in double precision; where a value is the closed form itself it is
+//! evaluated in the test.
 
 mod common;
 

@@ -146,6 +146,7 @@ proptest! {
                 exit: re(1.33),
                 materials: m,
                 layers: &idx,
+                back_layers: &[],
                 substrate_mm: mm,
             })
             .collect();
@@ -196,6 +197,7 @@ fn thick(
         exit: re(1.0),
         materials: &mats,
         layers: &idx,
+        back_layers: &[],
         substrate_mm: Some(mm),
     };
     solve(&s, wl, aoi.to_radians(), side, &mut Vec::new())

@@ -98,6 +98,7 @@ impl<'d> IndexGrid<'d> {
                 exit: row[nm + 2],
                 materials: &row[..nm],
                 layers,
+                back_layers: &self.design.back_layers,
                 substrate_mm: mm,
             }
         };

@@ -4,7 +4,8 @@
 //! layers are deposited one after another from the substrate up: after `x` nm of layer j the
 //! part carries layers 1 … j−1 complete and `x` nm of layer j, and faces the design's
 //! incident medium (for a design used in air, the chamber's vacuum differs by the index of
-//! air, 3·10⁻⁴). A substrate with a thickness keeps its back surface, as in every spectrum.
+//! air, 3·10⁻⁴). A substrate with a thickness keeps its back surface, as in every spectrum,
+//! with the back face's coating as designed (only the front layers grow here).
 //!
 //! Turning points are the extrema of the signal over deposited thickness — where the operator
 //! sees the signal stop and turn. For a layer growing on a stack whose admittance is real at
@@ -188,6 +189,7 @@ impl Part<'_> {
             exit: self.indices[nm + 2],
             materials: &self.indices[..nm],
             layers: &self.layers,
+            back_layers: &self.design.back_layers,
             substrate_mm: self.design.substrate_mm,
         };
         let r = solve(

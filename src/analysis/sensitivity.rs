@@ -4,7 +4,8 @@
 //! For layer j the sensitivity is the root-mean-square, over the sweep's wavelengths, of the
 //! change of the chosen quantity per 1 % change of that layer's thickness, taken as the
 //! central difference `(X(1.01 d_j) − X(0.99 d_j)) / 2` (fractions per %). A layer of zero
-//! thickness has sensitivity 0.
+//! thickness has sensitivity 0. The layers are the front ones; a coating on the back face of a
+//! thick substrate stays as designed.
 //!
 //! ```
 //! use stackwise::analysis::sensitivity::sensitivity;

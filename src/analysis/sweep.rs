@@ -350,6 +350,11 @@ pub(super) fn run(
     out
 }
 
+/// Layers of both faces, the work per point.
+fn layer_count(d: &ResolvedDesign) -> usize {
+    d.layers.len() + d.back_layers.len()
+}
+
 fn stack_at<'a>(d: &'a ResolvedDesign, row: &'a [Complex64]) -> StackAt<'a> {
     let nm = d.materials.len();
     StackAt {
@@ -358,6 +363,7 @@ fn stack_at<'a>(d: &'a ResolvedDesign, row: &'a [Complex64]) -> StackAt<'a> {
         exit: row[nm + 2],
         materials: &row[..nm],
         layers: &d.layers,
+        back_layers: &d.back_layers,
         substrate_mm: d.substrate_mm,
     }
 }
@@ -375,7 +381,7 @@ pub fn spectrum(
     let table = index_table(&mats, wavelengths_nm)?;
     let width = mats.len();
     let aoi = aoi_deg.to_radians();
-    let responses = run(wavelengths_nm.len(), d.layers.len(), |lanes, scratch| {
+    let responses = run(wavelengths_nm.len(), layer_count(d), |lanes, scratch| {
         let stacks = lanes.map(|i| stack_at(d, &table[i * width..(i + 1) * width]));
         let wl = lanes.map(|i| wavelengths_nm[i]);
         solve4(stacks.each_ref(), wl, [aoi; 4], side, scratch)
@@ -402,7 +408,7 @@ pub fn angle_scan(
     let mats = all_materials(d);
     let table = index_table(&mats, &[wavelength_nm])?;
     let stack = stack_at(d, &table);
-    let responses = run(aoi_deg.len(), d.layers.len(), |lanes, scratch| {
+    let responses = run(aoi_deg.len(), layer_count(d), |lanes, scratch| {
         let aoi = lanes.map(|i| aoi_deg[i].to_radians());
         solve4([&stack; 4], [wavelength_nm; 4], aoi, side, scratch)
     });

@@ -8,6 +8,10 @@
 //!   wavelength and in every layer of that material (k is left alone; the media and the
 //!   substrate are taken as known).
 //!
+//! A coating on the back face of a thick substrate keeps its thicknesses (its materials take
+//! the index errors of the run); the thickness errors concern the front layers, the ones the
+//! run deposits.
+//!
 //! Layer j of run i is `d_j (1 + e_sys)(1 + e_j)` thick (0 if that comes out negative) and its
 //! material has `n (1 + e_m)`. The result is the nominal curve and, at every wavelength, the
 //! chosen percentiles of the runs (linear between order statistics, the common "type 7"

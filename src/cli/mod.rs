@@ -515,29 +515,41 @@ fn info(d: &Design, out: &mut dyn Write) -> Result<()> {
         "incident: {}   substrate: {sub}   exit: {}   reference: {} nm",
         d.incident, d.exit, d.reference_nm
     )?;
-    writeln!(
-        out,
-        "{:>5}  {:<16} {:>12} {:>9} {:>14}",
-        "layer", "material", "nm", "QWOT", "optical nm"
-    )?;
-    for (i, layer) in d.layers.iter().enumerate() {
-        let no = i + 1;
+    let r = export::report::LayerReport::new(d)?;
+    info_table(out, "layer", &r.rows)?;
+    writeln!(out, "{} layers, {:.3} nm in all", r.rows.len(), r.total_nm)?;
+    if !r.back_rows.is_empty() {
+        writeln!(out, "back face (layer 1 on the substrate):")?;
+        info_table(out, "back", &r.back_rows)?;
         writeln!(
             out,
-            "{no:>5}  {:<16} {:>12.3} {:>9.4} {:>14.3}{}",
-            layer.material,
-            layer.nm.get(),
-            d.layer_qwot(no)?,
-            d.layer_optical_nm(no)?,
-            if layer.locked { "  locked" } else { "" }
+            "{} back layers, {:.3} nm in all",
+            r.back_rows.len(),
+            r.back_total_nm()
         )?;
     }
+    Ok(())
+}
+
+/// One face's layer table for `info`.
+fn info_table(out: &mut dyn Write, first: &str, rows: &[export::report::LayerRow]) -> Result<()> {
     writeln!(
         out,
-        "{} layers, {:.3} nm in all",
-        d.layers.len(),
-        d.total_nm()
+        "{first:>5}  {:<16} {:>12} {:>9} {:>14}",
+        "material", "nm", "QWOT", "optical nm"
     )?;
+    for r in rows {
+        writeln!(
+            out,
+            "{:>5}  {:<16} {:>12.3} {:>9.4} {:>14.3}{}",
+            r.no,
+            r.material,
+            r.nm,
+            r.qwot,
+            r.optical_nm,
+            if r.locked { "  locked" } else { "" }
+        )?;
+    }
     Ok(())
 }
 

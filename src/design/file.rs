@@ -247,6 +247,8 @@ pub fn to_ron_string(design: &Design) -> Result<String, DesignFileError> {
     let mut body = design.clone();
     body.format = FORMAT;
     let layers = std::mem::take(&mut body.layers);
+    // Left out of the body (an empty list is not written), and put back after `layers`.
+    let back_layers = std::mem::take(&mut body.back_layers);
     let materials = std::mem::take(&mut body.materials);
     let targets = std::mem::take(&mut body.targets);
     let pretty = PrettyConfig::new().indentor("    ").new_line("\n");
@@ -271,6 +273,11 @@ pub fn to_ron_string(design: &Design) -> Result<String, DesignFileError> {
         .map(|l| ron::ser::to_string_pretty(l, one_line.clone()))
         .collect::<Result<Vec<_>, _>>()
         .map_err(ser)?;
+    let back_layers = back_layers
+        .iter()
+        .map(|l| ron::ser::to_string_pretty(l, one_line.clone()))
+        .collect::<Result<Vec<_>, _>>()
+        .map_err(ser)?;
     let targets = targets
         .iter()
         .map(|t| ron::ser::to_string_pretty(t, one_line.clone()))
@@ -291,7 +298,12 @@ pub fn to_ron_string(design: &Design) -> Result<String, DesignFileError> {
         .collect::<Result<Vec<_>, ron::Error>>()
         .map_err(ser)?;
     // Strings in the body are escaped, so these lines can only be the fields themselves.
-    text = replace_line(&text, "    layers: [],", &list("layers", layers));
+    let mut faces = list("layers", layers);
+    if !back_layers.is_empty() {
+        faces.push('\n');
+        faces.push_str(&list("back_layers", back_layers));
+    }
+    text = replace_line(&text, "    layers: [],", &faces);
     text = replace_line(&text, "    materials: [],", &list("materials", materials));
     text = replace_line(&text, "    targets: [],", &list("targets", targets));
     text.push('\n');

@@ -3,7 +3,8 @@
 //!
 //! A [`Design`] is plain data: the incident medium, the substrate (semi-infinite or with a
 //! thickness), the exit medium, the layers in deposition order (layer 1 sits on the substrate
-//! and is listed first), the design's own materials, and the optimisation targets. It is
+//! and is listed first), a thick substrate's back-face coating (listed the same way, from the
+//! substrate outward), the design's own materials, and the optimisation targets. It is
 //! loaded and saved by [`file`](mod@file), checked by [`Design::validate`], turned into the engine's view
 //! by [`Design::resolve`], and can be written quickly with the [`notation`].
 //!
@@ -163,6 +164,11 @@ pub struct Design {
     pub exit: String,
     /// Layers in deposition order: layer 1 (on the substrate) first.
     pub layers: Vec<Layer>,
+    /// The coating on the substrate's back face, listed the same way: layer 1 touches the
+    /// substrate, the last one faces the exit medium. Needs a thick substrate
+    /// (`substrate_mm`); empty for a bare back face.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub back_layers: Vec<Layer>,
     /// Materials defined in this design; they win over built-ins of the same name.
     #[serde(default)]
     pub materials: Vec<Material>,
@@ -190,6 +196,7 @@ impl Design {
             substrate_mm: None,
             exit: "Air".into(),
             layers: Vec::new(),
+            back_layers: Vec::new(),
             materials: Vec::new(),
             targets: Vec::new(),
         }
@@ -199,6 +206,61 @@ impl Design {
     #[must_use]
     pub fn total_nm(&self) -> f64 {
         self.layers.iter().map(|l| l.nm.get()).sum()
+    }
+
+    /// The layers of one face of the substrate.
+    #[must_use]
+    pub fn face_layers(&self, face: Face) -> &[Layer] {
+        match face {
+            Face::Front => &self.layers,
+            Face::Back => &self.back_layers,
+        }
+    }
+
+    /// The layers of one face of the substrate, to edit.
+    pub fn face_layers_mut(&mut self, face: Face) -> &mut Vec<Layer> {
+        match face {
+            Face::Front => &mut self.layers,
+            Face::Back => &mut self.back_layers,
+        }
+    }
+}
+
+/// One of the substrate's two coated faces.
+///
+/// ```
+/// use stackwise::design::{Design, Face};
+/// let d = Design::new_empty("Window");
+/// assert!(d.face_layers(Face::Back).is_empty());
+/// assert_eq!(Face::Back.layer_word(), "back layer");
+/// ```
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
+pub enum Face {
+    /// The coated face towards the incident medium (`layers`).
+    #[default]
+    Front,
+    /// The substrate's back face towards the exit medium (`back_layers`); only with a thick
+    /// substrate.
+    Back,
+}
+
+impl Face {
+    /// How one layer of this face is named in messages and tables: `layer` or `back layer`.
+    #[must_use]
+    pub fn layer_word(self) -> &'static str {
+        match self {
+            Face::Front => "layer",
+            Face::Back => "back layer",
+        }
+    }
+
+    /// The design-file field holding this face's layers.
+    #[must_use]
+    pub fn field(self) -> &'static str {
+        match self {
+            Face::Front => "layers",
+            Face::Back => "back_layers",
+        }
     }
 }
 

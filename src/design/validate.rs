@@ -3,7 +3,7 @@
 use crate::material::{Catalog, Material, MaterialError};
 
 use super::target::MAX_TARGET_POINTS;
-use super::{Design, Target};
+use super::{Design, Face, Target};
 
 /// What can be wrong with a design's content (as opposed to its file's syntax).
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -23,6 +23,16 @@ pub enum DesignError {
     BadSubstrateThickness {
         /// The rejected value.
         value_mm: f64,
+    },
+    /// The design has back-face layers but no substrate thickness.
+    #[error(
+        "back_layers needs a thick substrate: a coating on the back face only exists when \
+         substrate_mm gives the substrate a thickness (e.g. Some(2.0)); set substrate_mm or \
+         remove the {count} back layer(s)"
+    )]
+    BackLayersWithoutThickness {
+        /// How many back layers there are.
+        count: usize,
     },
     /// A layer or medium names a material that cannot be found, or whose index cannot be
     /// evaluated.
@@ -115,6 +125,8 @@ pub struct ResolvedDesign {
     pub materials: Vec<Material>,
     /// Per layer, substrate side first: (index into `materials`, thickness in nm).
     pub layers: Vec<(usize, f64)>,
+    /// Per back-face layer, substrate side first, the same way; empty for a bare back face.
+    pub back_layers: Vec<(usize, f64)>,
 }
 
 fn lookup(catalog: &Catalog<'_>, name: &str, place: &str) -> Result<Material, DesignError> {
@@ -141,6 +153,11 @@ impl Design {
             && !(mm.is_finite() && mm > 0.0)
         {
             return Err(DesignError::BadSubstrateThickness { value_mm: mm });
+        }
+        if self.substrate_mm.is_none() && !self.back_layers.is_empty() {
+            return Err(DesignError::BackLayersWithoutThickness {
+                count: self.back_layers.len(),
+            });
         }
         for (i, m) in self.materials.iter().enumerate() {
             let entry = i + 1;
@@ -176,20 +193,25 @@ impl Design {
         let substrate = lookup(&catalog, &self.substrate, "substrate")?;
         let exit = lookup(&catalog, &self.exit, "exit medium")?;
         let mut materials: Vec<Material> = Vec::new();
-        let mut layers = Vec::with_capacity(self.layers.len());
-        for (i, layer) in self.layers.iter().enumerate() {
-            let at = if let Some(at) = materials.iter().position(|m| m.name == layer.material) {
-                at
-            } else {
-                materials.push(lookup(
-                    &catalog,
-                    &layer.material,
-                    &format!("layer {}", i + 1),
-                )?);
-                materials.len() - 1
-            };
-            layers.push((at, layer.nm.get()));
-        }
+        let mut face = |layers: &[super::Layer], word: &str| {
+            let mut out = Vec::with_capacity(layers.len());
+            for (i, layer) in layers.iter().enumerate() {
+                let at = if let Some(at) = materials.iter().position(|m| m.name == layer.material) {
+                    at
+                } else {
+                    materials.push(lookup(
+                        &catalog,
+                        &layer.material,
+                        &format!("{word} {}", i + 1),
+                    )?);
+                    materials.len() - 1
+                };
+                out.push((at, layer.nm.get()));
+            }
+            Ok::<_, DesignError>(out)
+        };
+        let layers = face(&self.layers, Face::Front.layer_word())?;
+        let back_layers = face(&self.back_layers, Face::Back.layer_word())?;
         Ok(ResolvedDesign {
             incident,
             substrate,
@@ -197,6 +219,7 @@ impl Design {
             substrate_mm: self.substrate_mm,
             materials,
             layers,
+            back_layers,
         })
     }
 }

@@ -2,6 +2,7 @@
 //! (PNG and SVG) and the layer report (CSV, Markdown, HTML).
 
 pub mod csv;
+pub mod palette;
 pub mod plot;
 pub mod report;
 

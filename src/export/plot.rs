@@ -49,20 +49,9 @@ pub const MAX_SIDE_PX: u32 = 8000;
 /// Most pixels a PNG may have (width × height); larger images would need hundreds of MB.
 pub const MAX_PIXELS: u64 = 32_000_000;
 
-/// Series colours, in order of use, as (red, green, blue).
-///
-/// The colour-blind-safe set of M. Okabe and K. Ito, "Color Universal Design (CUD): how to make
-/// figures and presentations that are friendly to colorblind people" (2008), without its
-/// yellow, which is too faint on white.
-pub const PALETTE: [(u8, u8, u8); 7] = [
-    (0, 114, 178),   // blue
-    (213, 94, 0),    // vermilion
-    (0, 158, 115),   // bluish green
-    (204, 121, 167), // reddish purple
-    (230, 159, 0),   // orange
-    (86, 180, 233),  // sky blue
-    (0, 0, 0),       // black
-];
+/// Series colours, in order of use, as (red, green, blue): the window's design colours
+/// ([`super::palette::DESIGN_COLOURS`]), so series k of a comparison has design k's colour.
+pub const PALETTE: [(u8, u8, u8); 7] = super::palette::DESIGN_COLOURS;
 
 /// The font family name the embedded font is registered under.
 const FONT: &str = "sans-serif";
@@ -195,7 +184,7 @@ fn font_ready() -> Result<(), ExportError> {
 /// The colour of palette entry `index` (wrapping around).
 #[must_use]
 pub fn palette_colour(index: usize) -> (u8, u8, u8) {
-    PALETTE[index % PALETTE.len()]
+    super::palette::design_colour(index)
 }
 
 /// The series' finite points, split into runs at non-finite points.

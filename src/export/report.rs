@@ -1,7 +1,8 @@
 //! The layer report: one row per layer (number, material, physical thickness, QWOT and optical
 //! thickness at the reference wavelength, running total of physical thickness), totals per
 //! material and overall, and a header naming the design, its media and the reference
-//! wavelength. Built once ([`LayerReport::new`]) and written as CSV, Markdown or HTML.
+//! wavelength. A design with a coated back face gets a second layer table for it. Built once
+//! ([`LayerReport::new`]) and written as CSV, Markdown or HTML.
 //!
 //! ```
 //! use stackwise::design::{Design, Layer, Nm};
@@ -21,7 +22,8 @@
 use std::fmt::{self, Write as _};
 
 use super::ExportError;
-use crate::design::Design;
+use crate::design::{Design, Face, reference_index};
+use crate::material::Catalog;
 
 /// One layer's line.
 #[derive(Clone, Debug, PartialEq)]
@@ -68,9 +70,11 @@ pub struct LayerReport {
     pub reference_nm: f64,
     /// The layers, layer 1 first.
     pub rows: Vec<LayerRow>,
+    /// The back face's layers, layer 1 (on the substrate) first; empty for a bare back face.
+    pub back_rows: Vec<LayerRow>,
     /// Totals per material, in order of first use.
     pub per_material: Vec<MaterialTotal>,
-    /// Total physical thickness (nm).
+    /// Total physical thickness (nm) of the front coating.
     pub total_nm: f64,
     /// A line printed under the header (see [`super::SAFETY_CAUTION`]).
     pub caution: Option<String>,
@@ -80,36 +84,22 @@ impl LayerReport {
     /// Builds the report; fails if a layer's material has no index at the reference
     /// wavelength.
     pub fn new(d: &Design) -> Result<Self, ExportError> {
-        let mut rows = Vec::with_capacity(d.layers.len());
+        let rows = face_rows(d, Face::Front)?;
+        let back_rows = face_rows(d, Face::Back)?;
         let mut per_material: Vec<MaterialTotal> = Vec::new();
-        let mut cumulative_nm = 0.0;
-        for (i, layer) in d.layers.iter().enumerate() {
-            let no = i + 1;
-            let nm = layer.nm.get();
-            cumulative_nm += nm;
-            rows.push(LayerRow {
-                no,
-                material: layer.material.clone(),
-                nm,
-                qwot: d.layer_qwot(no)?,
-                optical_nm: d.layer_optical_nm(no)?,
-                cumulative_nm,
-                locked: layer.locked,
-            });
-            if let Some(t) = per_material
-                .iter_mut()
-                .find(|t| t.material == layer.material)
-            {
+        for r in &rows {
+            if let Some(t) = per_material.iter_mut().find(|t| t.material == r.material) {
                 t.count += 1;
-                t.nm += nm;
+                t.nm += r.nm;
             } else {
                 per_material.push(MaterialTotal {
-                    material: layer.material.clone(),
+                    material: r.material.clone(),
                     count: 1,
-                    nm,
+                    nm: r.nm,
                 });
             }
         }
+        let total_nm = rows.last().map_or(0.0, |r| r.cumulative_nm);
         let substrate = match d.substrate_mm {
             Some(mm) => format!("{} ({mm} mm)", d.substrate),
             None => format!("{} (semi-infinite)", d.substrate),
@@ -121,10 +111,17 @@ impl LayerReport {
             exit: d.exit.clone(),
             reference_nm: d.reference_nm,
             rows,
+            back_rows,
             per_material,
-            total_nm: cumulative_nm,
+            total_nm,
             caution: super::needs_caution(&d.name).then(|| super::SAFETY_CAUTION.to_owned()),
         })
+    }
+
+    /// Total physical thickness (nm) of the back coating.
+    #[must_use]
+    pub fn back_total_nm(&self) -> f64 {
+        self.back_rows.last().map_or(0.0, |r| r.cumulative_nm)
     }
 
     fn media(&self) -> String {
@@ -135,8 +132,10 @@ impl LayerReport {
     }
 
     /// CSV: `#` header lines, then `layer,material,nm,qwot,optical_nm,cumulative_nm,locked`,
-    /// then a blank line and `material,layers,nm` totals ending with an `all` row. Numbers are
-    /// written in full (round-trip) precision.
+    /// then a blank line and `material,layers,nm` totals ending with an `all` row; with a
+    /// coated back face, a blank line and the back layers under
+    /// `back_layer,material,nm,qwot,optical_nm,cumulative_nm,locked`. Numbers are written in
+    /// full (round-trip) precision.
     #[must_use]
     pub fn to_csv(&self) -> String {
         render(|s| self.write_csv(s))
@@ -150,19 +149,7 @@ impl LayerReport {
             writeln!(s, "# caution: {c}")?;
         }
         s.push_str("layer,material,nm,qwot,optical_nm,cumulative_nm,locked\n");
-        for r in &self.rows {
-            writeln!(
-                s,
-                "{},{},{},{},{},{},{}",
-                r.no,
-                crate::export::csv::field(&r.material),
-                r.nm,
-                r.qwot,
-                r.optical_nm,
-                r.cumulative_nm,
-                r.locked
-            )?;
-        }
+        csv_rows(s, &self.rows)?;
         s.push_str("\nmaterial,layers,nm\n");
         for t in &self.per_material {
             writeln!(
@@ -174,10 +161,15 @@ impl LayerReport {
             )?;
         }
         writeln!(s, "all,{},{}", self.rows.len(), self.total_nm)?;
+        if !self.back_rows.is_empty() {
+            s.push_str("\nback_layer,material,nm,qwot,optical_nm,cumulative_nm,locked\n");
+            csv_rows(s, &self.back_rows)?;
+        }
         Ok(())
     }
 
-    /// A Markdown document: title, header lines, the layer table and the totals table.
+    /// A Markdown document: title, header lines, the layer table and the totals table, then
+    /// (with a coated back face) a "Back face" section with its layer table.
     /// Numbers are rounded for reading (nm to 0.01, QWOT to 0.0001).
     #[must_use]
     pub fn to_markdown(&self) -> String {
@@ -197,23 +189,7 @@ impl LayerReport {
         if let Some(c) = &self.caution {
             writeln!(s, "\n**Caution:** {}", md_cell(c))?;
         }
-        s.push_str(
-            "\n| Layer | Material | Thickness (nm) | QWOT | Optical thickness (nm) \
-             | Cumulative (nm) | Locked |\n|---:|:---|---:|---:|---:|---:|:---:|\n",
-        );
-        for r in &self.rows {
-            writeln!(
-                s,
-                "| {} | {} | {:.2} | {:.4} | {:.2} | {:.2} | {} |",
-                r.no,
-                md_cell(&r.material),
-                r.nm,
-                r.qwot,
-                r.optical_nm,
-                r.cumulative_nm,
-                if r.locked { "yes" } else { "" }
-            )?;
-        }
+        md_table(s, "Layer", &self.rows)?;
         s.push_str("\n| Material | Layers | Thickness (nm) |\n|:---|---:|---:|\n");
         for t in &self.per_material {
             writeln!(
@@ -230,6 +206,15 @@ impl LayerReport {
             self.rows.len(),
             self.total_nm
         )?;
+        if !self.back_rows.is_empty() {
+            writeln!(
+                s,
+                "\n## Back face\n\n- Back layers: {}, total physical thickness {:.2} nm",
+                self.back_rows.len(),
+                self.back_total_nm()
+            )?;
+            md_table(s, "Back layer", &self.back_rows)?;
+        }
         Ok(())
     }
 
@@ -265,28 +250,9 @@ impl LayerReport {
         if let Some(c) = &self.caution {
             writeln!(s, "<p class=\"caution\">Caution: {}</p>", html(c))?;
         }
+        html_table(s, "layers", "Layer", &self.rows)?;
         s.push_str(
-            "<table class=\"layers\">\n<thead><tr><th>Layer</th><th>Material</th>\
-             <th>Thickness (nm)</th><th>QWOT</th><th>Optical thickness (nm)</th>\
-             <th>Cumulative (nm)</th><th>Locked</th></tr></thead>\n<tbody>\n",
-        );
-        for r in &self.rows {
-            writeln!(
-                s,
-                "<tr><td class=\"num\">{}</td><td>{}</td><td class=\"num\">{:.2}</td>\
-                 <td class=\"num\">{:.4}</td><td class=\"num\">{:.2}</td>\
-                 <td class=\"num\">{:.2}</td><td>{}</td></tr>",
-                r.no,
-                html(&r.material),
-                r.nm,
-                r.qwot,
-                r.optical_nm,
-                r.cumulative_nm,
-                if r.locked { "yes" } else { "" }
-            )?;
-        }
-        s.push_str(
-            "</tbody>\n</table>\n<table class=\"totals\">\n<thead><tr><th>Material</th>\
+            "<table class=\"totals\">\n<thead><tr><th>Material</th>\
              <th>Layers</th><th>Thickness (nm)</th></tr></thead>\n<tbody>\n",
         );
         for t in &self.per_material {
@@ -301,12 +267,114 @@ impl LayerReport {
         write!(
             s,
             "</tbody>\n<tfoot><tr><td>All</td><td class=\"num\">{}</td>\
-             <td class=\"num\">{:.2}</td></tr></tfoot>\n</table>\n</body>\n</html>\n",
+             <td class=\"num\">{:.2}</td></tr></tfoot>\n</table>\n",
             self.rows.len(),
             self.total_nm
         )?;
+        if !self.back_rows.is_empty() {
+            writeln!(
+                s,
+                "<h2>Back face</h2>\n<p>Back layers: {}, total physical thickness {:.2} nm</p>",
+                self.back_rows.len(),
+                self.back_total_nm()
+            )?;
+            html_table(s, "back-layers", "Back layer", &self.back_rows)?;
+        }
+        s.push_str("</body>\n</html>\n");
         Ok(())
     }
+}
+
+/// The rows of one face's layer table.
+fn face_rows(d: &Design, face: Face) -> Result<Vec<LayerRow>, ExportError> {
+    let catalog = Catalog::new(&d.materials);
+    let mut cumulative_nm = 0.0;
+    let mut rows = Vec::new();
+    for (i, layer) in d.face_layers(face).iter().enumerate() {
+        let no = i + 1;
+        let place = format!("{} {no}", face.layer_word());
+        let n = reference_index(&catalog, &layer.material, d.reference_nm, &place)?;
+        let nm = layer.nm.get();
+        cumulative_nm += nm;
+        rows.push(LayerRow {
+            no,
+            material: layer.material.clone(),
+            nm,
+            qwot: 4.0 * n * nm / d.reference_nm,
+            optical_nm: n * nm,
+            cumulative_nm,
+            locked: layer.locked,
+        });
+    }
+    Ok(rows)
+}
+
+/// CSV lines of a layer table (without its header).
+fn csv_rows(s: &mut String, rows: &[LayerRow]) -> fmt::Result {
+    for r in rows {
+        writeln!(
+            s,
+            "{},{},{},{},{},{},{}",
+            r.no,
+            crate::export::csv::field(&r.material),
+            r.nm,
+            r.qwot,
+            r.optical_nm,
+            r.cumulative_nm,
+            r.locked
+        )?;
+    }
+    Ok(())
+}
+
+/// A Markdown layer table whose first column is headed `first`.
+fn md_table(s: &mut String, first: &str, rows: &[LayerRow]) -> fmt::Result {
+    writeln!(
+        s,
+        "\n| {first} | Material | Thickness (nm) | QWOT | Optical thickness (nm) \
+         | Cumulative (nm) | Locked |\n|---:|:---|---:|---:|---:|---:|:---:|"
+    )?;
+    for r in rows {
+        writeln!(
+            s,
+            "| {} | {} | {:.2} | {:.4} | {:.2} | {:.2} | {} |",
+            r.no,
+            md_cell(&r.material),
+            r.nm,
+            r.qwot,
+            r.optical_nm,
+            r.cumulative_nm,
+            if r.locked { "yes" } else { "" }
+        )?;
+    }
+    Ok(())
+}
+
+/// An HTML layer table of class `class` whose first column is headed `first`.
+fn html_table(s: &mut String, class: &str, first: &str, rows: &[LayerRow]) -> fmt::Result {
+    writeln!(
+        s,
+        "<table class=\"{class}\">\n<thead><tr><th>{first}</th><th>Material</th>\
+         <th>Thickness (nm)</th><th>QWOT</th><th>Optical thickness (nm)</th>\
+         <th>Cumulative (nm)</th><th>Locked</th></tr></thead>\n<tbody>"
+    )?;
+    for r in rows {
+        writeln!(
+            s,
+            "<tr><td class=\"num\">{}</td><td>{}</td><td class=\"num\">{:.2}</td>\
+             <td class=\"num\">{:.4}</td><td class=\"num\">{:.2}</td>\
+             <td class=\"num\">{:.2}</td><td>{}</td></tr>",
+            r.no,
+            html(&r.material),
+            r.nm,
+            r.qwot,
+            r.optical_nm,
+            r.cumulative_nm,
+            if r.locked { "yes" } else { "" }
+        )?;
+    }
+    s.push_str("</tbody>\n</table>\n");
+    Ok(())
 }
 
 /// Line breaks turned into spaces, for `#` header lines.

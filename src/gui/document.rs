@@ -10,7 +10,7 @@
 
 use std::path::{Path, PathBuf};
 
-use crate::design::{Design, DesignError, DesignFileError, Layer, Nm, file};
+use crate::design::{Design, DesignError, DesignFileError, Face, Layer, Nm, file};
 use crate::material::{Catalog, Material, MaterialError};
 
 use super::history::History;
@@ -78,6 +78,10 @@ pub enum Edit {
     SetReference(f64),
     /// Replaces all layers (e.g. built from stack notation).
     ReplaceLayers(Vec<Layer>),
+    /// A layer edit (any of the above from `SetThickness` to `ReplaceLayers`) carried out on
+    /// the substrate's back face, `back_layers`, instead of the front coating; its layer
+    /// indices count from the substrate outward the same way. Needs a substrate thickness.
+    OnBackFace(Box<Edit>),
     /// Renames the design.
     SetName(String),
     /// Adds a material to the design's own list.
@@ -129,6 +133,36 @@ impl From<Edit> for Command {
     }
 }
 
+impl Edit {
+    /// `edit` for the layers of `face`: as it is for the front, wrapped in
+    /// [`Edit::OnBackFace`] for the back.
+    #[must_use]
+    pub fn on_face(face: Face, edit: Edit) -> Edit {
+        match face {
+            Face::Front => edit,
+            Face::Back => Edit::OnBackFace(Box::new(edit)),
+        }
+    }
+
+    /// Whether the edit changes layers (and so can be carried out on either face).
+    #[must_use]
+    pub fn is_layer_edit(&self) -> bool {
+        matches!(
+            self,
+            Edit::SetThickness { .. }
+                | Edit::SetQwot { .. }
+                | Edit::SetMaterial { .. }
+                | Edit::InsertLayer { .. }
+                | Edit::DuplicateLayer(_)
+                | Edit::RemoveLayers(_)
+                | Edit::MoveLayer { .. }
+                | Edit::ScaleLayers { .. }
+                | Edit::ToggleLock(_)
+                | Edit::ReplaceLayers(_)
+        )
+    }
+}
+
 /// Why a command was refused.
 #[derive(Debug, thiserror::Error)]
 #[non_exhaustive]
@@ -174,6 +208,27 @@ pub enum CommandError {
     /// A refused change to the material list.
     #[error("{0}")]
     Materials(String),
+    /// The back face has a coating only on a substrate with a thickness.
+    #[error(
+        "the back face can only be coated on a substrate with a thickness; \
+         turn on \"back surface\" first"
+    )]
+    BackFaceNeedsThickness,
+    /// Making the substrate semi-infinite would drop the back face's layers.
+    #[error(
+        "the back face has {count} layer(s), which need a substrate thickness; \
+         delete them before making the substrate semi-infinite"
+    )]
+    BackLayersNeedThickness {
+        /// How many back layers there are.
+        count: usize,
+    },
+    /// Only layer edits can be aimed at the back face.
+    #[error("only layer edits can be carried out on the back face")]
+    NotALayerEdit,
+    /// A layer edit on the back face was refused.
+    #[error("back face: {0}")]
+    BackFace(Box<CommandError>),
     /// A result of background work for a design that has changed since.
     #[error(
         "the design changed while the work was running (revision {from_revision}, now \
@@ -379,6 +434,11 @@ impl Document {
                         v,
                     ));
                 }
+                if mm.is_none() && !self.design.back_layers.is_empty() {
+                    return Err(CommandError::BackLayersNeedThickness {
+                        count: self.design.back_layers.len(),
+                    });
+                }
                 self.design.substrate_mm = mm;
             }
             Edit::SetReference(nm) => {
@@ -397,6 +457,7 @@ impl Document {
                 }
                 self.design.layers = layers;
             }
+            Edit::OnBackFace(edit) => self.apply_on_back_face(*edit)?,
             Edit::SetName(name) => self.design.name = name,
             Edit::AddMaterial(m) => self.add_material(m)?,
             Edit::ReplaceMaterial { old_name, material } => {
@@ -459,6 +520,23 @@ impl Document {
             }
         }
         Ok(())
+    }
+
+    /// A layer edit on `back_layers`: the two faces trade places for the edit, so every layer
+    /// edit works on the back face as it does on the front.
+    fn apply_on_back_face(&mut self, edit: Edit) -> Result<(), CommandError> {
+        if !edit.is_layer_edit() {
+            return Err(CommandError::NotALayerEdit);
+        }
+        if self.design.substrate_mm.is_none() {
+            return Err(CommandError::BackFaceNeedsThickness);
+        }
+        let d = &mut self.design;
+        std::mem::swap(&mut d.layers, &mut d.back_layers);
+        let result = self.apply_edit(edit);
+        let d = &mut self.design;
+        std::mem::swap(&mut d.layers, &mut d.back_layers);
+        result.map_err(|e| CommandError::BackFace(Box::new(e)))
     }
 
     fn save_to(&mut self, path: &Path) -> Result<(), CommandError> {
@@ -604,6 +682,42 @@ mod tests {
 
     fn nms(d: &Document) -> Vec<f64> {
         d.design.layers.iter().map(|l| l.nm.get()).collect()
+    }
+
+    #[test]
+    fn layer_edits_reach_the_back_face() {
+        let mut d = doc();
+        let back = |e| Edit::on_face(Face::Back, e);
+        let layer = Layer::new("L", Nm::new(90.0).unwrap());
+        let e = d
+            .apply(back(Edit::InsertLayer {
+                at: 0,
+                layer: layer.clone(),
+            }))
+            .unwrap_err();
+        assert!(e.to_string().contains("turn on \"back surface\""), "{e}");
+        d.apply(Edit::SetSubstrateMm(Some(2.0))).unwrap();
+        d.apply(back(Edit::InsertLayer { at: 0, layer })).unwrap();
+        d.apply(back(Edit::SetQwot {
+            layer: 0,
+            qwot: 1.0,
+        }))
+        .unwrap();
+        // A quarter wave of n = 1.5 at 550 nm: 550 / 6 nm.
+        assert!((d.design().back_layers[0].nm.get() - 550.0 / 6.0).abs() < 1e-9);
+        assert_eq!(nms(&d), [10.0, 20.0, 30.0], "the front is untouched");
+        let e = d.apply(back(Edit::ToggleLock(1))).unwrap_err();
+        assert!(
+            e.to_string().starts_with("back face: there is no layer 2"),
+            "{e}"
+        );
+        let e = d.apply(back(Edit::SetName("x".into()))).unwrap_err();
+        assert!(e.to_string().contains("only layer edits"), "{e}");
+        let e = d.apply(Edit::SetSubstrateMm(None)).unwrap_err();
+        assert!(e.to_string().contains("1 layer(s)"), "{e}");
+        assert_eq!(d.design().substrate_mm, Some(2.0), "refused");
+        d.apply(back(Edit::RemoveLayers(vec![0]))).unwrap();
+        d.apply(Edit::SetSubstrateMm(None)).unwrap();
     }
 
     #[test]

@@ -126,6 +126,8 @@ pub struct ExportInputs<'a> {
     pub design_path: Option<&'a Path>,
     /// The plots' settings (range, step, angle, curves on show).
     pub view: &'a ViewSettings,
+    /// The design's slot in the design palette, so its image has its colour on screen.
+    pub colour_slot: usize,
 }
 
 /// The export window's state.
@@ -279,7 +281,10 @@ fn export_bytes(
                     path.display()
                 ));
             };
-            let spec = view_plot(d, view)?;
+            let mut spec = view_plot(d, view)?;
+            for series in &mut spec.series {
+                series.colour = inputs.colour_slot;
+            }
             match format {
                 ImageFormat::Png => plot::render_png(&spec, width_px, height_px),
                 ImageFormat::Svg => {

@@ -8,7 +8,7 @@ use super::chooser::{self, Chooser, ChooserOutcome, FileRequest};
 use super::designs::DesignId;
 use super::document::Command;
 use super::jobs::{Job, JobEnd};
-use super::{export_window, measured};
+use super::{export_window, measured, theme};
 
 /// A file action that may have to wait for the unsaved-changes question.
 #[derive(Clone, Debug, PartialEq)]
@@ -247,11 +247,13 @@ impl App {
     /// Writes the export chosen in the export window to `path`, as the Save dialog's answer
     /// does; the outcome shows in the export window (and errors in the status line).
     pub fn export_to(&mut self, path: &Path) -> Result<PathBuf, String> {
-        let doc = &self.designs[self.active_index()].doc;
+        let active = &self.designs[self.active_index()];
+        let doc = &active.doc;
         let inputs = export_window::ExportInputs {
             design: doc.design(),
             design_path: doc.path(),
             view: &self.view,
+            colour_slot: theme::design_slot(active.colour),
         };
         let written = self.export.export_to(&inputs, path);
         if let Err(e) = &written {
@@ -373,6 +375,7 @@ impl App {
             design: doc.design(),
             design_path: doc.path(),
             view: &self.view,
+            colour_slot: theme::design_slot(self.designs[i].colour),
         };
         let export = export_window::export_window(ctx, &mut self.export, &inputs);
         if let Some(export_window::ExportAction::ChooseFile(req)) = export {

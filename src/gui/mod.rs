@@ -37,6 +37,7 @@ pub mod measured;
 mod menu;
 pub mod plots;
 mod recovery;
+mod section;
 pub mod stack;
 mod status;
 pub mod theme;

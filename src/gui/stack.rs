@@ -1,25 +1,30 @@
 //! The left panel: the stack's cross-section, the layer table, the media and the notation box.
 //!
-//! Reads the design, pushes [`Edit`]s; never mutates the design itself.
+//! Reads the design, pushes [`Edit`]s; never mutates the design itself. The layer table,
+//! its buttons and the notation box edit one face of the substrate at a time (the front
+//! coating, or a thick substrate's back face); the cross-section shows both.
 
+use std::borrow::Cow;
 use std::collections::{BTreeMap, BTreeSet};
 
-use egui::{Color32, DragValue, Pos2, Rect, RichText, Sense, Stroke, StrokeKind, Vec2};
+use egui::{Color32, DragValue, RichText};
 
 use crate::design::notation::build_layers;
-use crate::design::{Design, Layer, Nm, nm_from_qwot};
+use crate::design::{Design, Face, Layer, Nm, nm_from_qwot};
 use crate::material::{Catalog, Material};
 
 use super::document::Edit;
-use super::theme;
+use super::{section, theme};
 
 /// Height of the cross-section strip and of the table's scroll area (points).
-const STRIP_HEIGHT: f32 = 380.0;
+pub(super) const STRIP_HEIGHT: f32 = 380.0;
 
 /// Selection and the panel's own editing state (not part of the design).
 #[derive(Clone, Debug)]
 pub struct StackUi {
-    /// Selected layers, 0-based indices.
+    /// The face whose layers the table, buttons and notation box edit.
+    pub face: Face,
+    /// Selected layers of that face, 0-based indices.
     pub selected: BTreeSet<usize>,
     anchor: Option<usize>,
     /// The stack-notation text.
@@ -38,6 +43,7 @@ pub struct StackUi {
 impl Default for StackUi {
     fn default() -> Self {
         Self {
+            face: Face::Front,
             selected: BTreeSet::new(),
             anchor: None,
             notation: "(HL)^2".into(),
@@ -139,34 +145,89 @@ fn material_combo(
 }
 
 /// The index of `name` at the design's reference wavelength, as (n, k).
-fn nk_at_reference(catalog: &Catalog<'_>, name: &str, reference_nm: f64) -> Option<(f64, f64)> {
+pub(super) fn nk_at_reference(
+    catalog: &Catalog<'_>,
+    name: &str,
+    reference_nm: f64,
+) -> Option<(f64, f64)> {
     let m = catalog.get(name).ok()?;
     let n = m.index_at(reference_nm).ok()?;
     Some((n.re, n.im))
 }
 
-fn colour_of(catalog: &Catalog<'_>, name: &str, reference_nm: f64) -> Color32 {
+/// The cross-section colour of material `name`.
+pub(super) fn colour_of(catalog: &Catalog<'_>, name: &str, reference_nm: f64) -> Color32 {
     nk_at_reference(catalog, name, reference_nm)
         .map_or(theme::UNKNOWN, |(n, k)| theme::material_colour(n, k))
 }
 
 /// The whole left panel.
 pub fn stack_ui(ui: &mut egui::Ui, design: &Design, state: &mut StackUi, out: &mut Vec<Edit>) {
-    state.clamp_selection(design.layers.len());
+    if design.substrate_mm.is_none() && state.face == Face::Back {
+        state.face = Face::Front;
+        state.selected.clear();
+    }
+    let face = state.face;
+    // The table, buttons and notation box see the chosen face's layers as `layers`; their
+    // commands are then aimed at that face.
+    let shown = face_view(design, face);
+    state.clamp_selection(shown.layers.len());
     let catalog = Catalog::new(&design.materials);
+    let mut edits = Vec::new();
     egui::ScrollArea::vertical().show(ui, |ui| {
         design_row_ui(ui, design, out);
         ui.separator();
         media_ui(ui, design, &catalog, state, out);
         ui.separator();
+        face_switch_ui(ui, design, state);
         ui.horizontal_top(|ui| {
-            cross_section_ui(ui, design, &catalog, state);
-            ui.vertical(|ui| layer_table_ui(ui, design, &catalog, state, out));
+            section::cross_section_ui(ui, design, &catalog, &state.selected, face);
+            ui.vertical(|ui| layer_table_ui(ui, &shown, face, &catalog, state, &mut edits));
         });
-        buttons_ui(ui, design, &catalog, state, out);
+        buttons_ui(ui, &shown, &catalog, state, &mut edits);
         ui.separator();
-        notation_ui(ui, design, &catalog, state, out);
+        notation_ui(ui, &shown, &catalog, state, &mut edits);
     });
+    out.extend(edits.into_iter().map(|c| Edit::on_face(face, c)));
+}
+
+/// The design with `face`'s layers in `layers` (the back face's layers count from the
+/// substrate outward, as the front's do).
+fn face_view(design: &Design, face: Face) -> Cow<'_, Design> {
+    match face {
+        Face::Front => Cow::Borrowed(design),
+        Face::Back => {
+            let mut d = design.clone();
+            std::mem::swap(&mut d.layers, &mut d.back_layers);
+            Cow::Owned(d)
+        }
+    }
+}
+
+/// The switch between the two faces; the back face only with a thick substrate.
+fn face_switch_ui(ui: &mut egui::Ui, design: &Design, state: &mut StackUi) {
+    let before = state.face;
+    ui.horizontal(|ui| {
+        ui.label("Coating on");
+        ui.selectable_value(&mut state.face, Face::Front, "Front face")
+            .on_hover_text("the coating towards the incident medium");
+        ui.add_enabled_ui(design.substrate_mm.is_some(), |ui| {
+            ui.selectable_value(&mut state.face, Face::Back, "Back face")
+                .on_hover_text(format!(
+                    "the coating on the substrate's back face, towards the exit medium \
+                     ({} layers); light from the back meets it first",
+                    design.back_layers.len()
+                ))
+                .on_disabled_hover_text(
+                    "turn on \"back surface\" to give the substrate a thickness: only then \
+                     has it a back face to coat",
+                );
+        });
+    });
+    if state.face != before {
+        state.selected.clear();
+        state.anchor = None;
+    }
 }
 
 fn design_row_ui(ui: &mut egui::Ui, design: &Design, out: &mut Vec<Edit>) {
@@ -267,101 +328,21 @@ fn media_ui(
     });
 }
 
-/// To-scale cross-section: incident medium on top with the light's direction, layers with
-/// heights proportional to thickness, the substrate at the bottom.
-fn cross_section_ui(ui: &mut egui::Ui, design: &Design, catalog: &Catalog<'_>, state: &StackUi) {
-    let (rect, response) = ui.allocate_exact_size(Vec2::new(64.0, STRIP_HEIGHT), Sense::hover());
-    let painter = ui.painter_at(rect);
-    let medium_h = 44.0;
-    let top = Rect::from_min_size(rect.min, Vec2::new(rect.width(), medium_h));
-    let bottom = Rect::from_min_max(Pos2::new(rect.min.x, rect.max.y - medium_h), rect.max);
-    let r = design.reference_nm;
-    let incident_c = colour_of(catalog, &design.incident, r);
-    painter.rect_filled(top, 0.0, incident_c.gamma_multiply(0.5));
-    // The light arrives from the incident medium, travelling down into the coating.
-    let x = top.center().x;
-    let arrow = Stroke::new(2.0, theme::text_on(incident_c.gamma_multiply(0.5)));
-    painter.arrow(
-        Pos2::new(x, top.min.y + 6.0),
-        Vec2::new(0.0, medium_h - 12.0),
-        arrow,
-    );
-    let sub_c = colour_of(catalog, &design.substrate, r);
-    painter.rect_filled(bottom, 0.0, sub_c);
-    painter.text(
-        bottom.center(),
-        egui::Align2::CENTER_CENTER,
-        "substrate",
-        egui::FontId::proportional(10.0),
-        theme::text_on(sub_c),
-    );
-    let stack = Rect::from_min_max(
-        Pos2::new(rect.min.x, top.max.y),
-        Pos2::new(rect.max.x, bottom.min.y),
-    );
-    let total = design.total_nm();
-    let n = design.layers.len();
-    let mut hovered = None;
-    let mut y = stack.max.y;
-    for (i, layer) in design.layers.iter().enumerate() {
-        let share = if total > 0.0 {
-            (layer.nm.get() / total) as f32
-        } else {
-            1.0 / n as f32
-        };
-        let h = stack.height() * share;
-        let band = Rect::from_min_max(Pos2::new(stack.min.x, y - h), Pos2::new(stack.max.x, y));
-        painter.rect_filled(band, 0.0, colour_of(catalog, &layer.material, r));
-        if state.selected.contains(&i) {
-            painter.rect_stroke(
-                band,
-                0.0,
-                Stroke::new(2.0, Color32::WHITE),
-                StrokeKind::Inside,
-            );
-        }
-        if let Some(p) = response.hover_pos()
-            && band.contains(p)
-        {
-            hovered = Some(i);
-        }
-        y -= h;
-    }
-    painter.rect_stroke(
-        rect,
-        0.0,
-        Stroke::new(1.0, Color32::GRAY),
-        StrokeKind::Inside,
-    );
-    if let Some(i) = hovered {
-        let l = &design.layers[i];
-        let nk = nk_at_reference(catalog, &l.material, r).map_or_else(String::new, |(n, k)| {
-            format!("\nn = {n:.4}, k = {k:.4} at {r} nm")
-        });
-        response.on_hover_text(format!(
-            "layer {}: {} {:.2} nm{nk}",
-            i + 1,
-            l.material,
-            l.nm.get()
-        ));
-    } else {
-        response.on_hover_text(format!(
-            "light from {} (top) onto the coating, {} layers, {:.1} nm in total, on {}",
-            design.incident, n, total, design.substrate
-        ));
-    }
-}
-
 fn layer_table_ui(
     ui: &mut egui::Ui,
     design: &Design,
+    face: Face,
     catalog: &Catalog<'_>,
     state: &mut StackUi,
     out: &mut Vec<Edit>,
 ) {
+    let what = match face {
+        Face::Front => "layers, outermost first",
+        Face::Back => "back-face layers, outermost (exit side) first",
+    };
     ui.label(
         RichText::new(format!(
-            "{} layers, outermost first; drag a number to move a layer",
+            "{} {what}; drag a number to move a layer",
             design.layers.len()
         ))
         .weak(),

@@ -30,18 +30,25 @@ pub const T: Color32 = Color32::from_rgb(60, 120, 220);
 /// Colour of the absorptance curves.
 pub const A: Color32 = Color32::from_rgb(90, 170, 80);
 
-/// Colours that tell open designs apart, chosen to stay distinguishable under the common
-/// forms of colour-vision deficiency (and on light or dark backgrounds): orange, sky blue,
-/// bluish green, vermilion, blue, reddish purple, yellow. A design keeps its colour while open.
-pub const DESIGN_PALETTE: [Color32; 7] = [
-    Color32::from_rgb(230, 159, 0),
-    Color32::from_rgb(86, 180, 233),
-    Color32::from_rgb(0, 158, 115),
-    Color32::from_rgb(213, 94, 0),
-    Color32::from_rgb(0, 114, 178),
-    Color32::from_rgb(204, 121, 167),
-    Color32::from_rgb(240, 228, 66),
-];
+/// Colours that tell open designs apart: [`crate::export::palette::DESIGN_COLOURS`], the
+/// same ones exported images use, in the same order. A design keeps its colour while open.
+pub const DESIGN_PALETTE: [Color32; 7] = {
+    let c = crate::export::palette::DESIGN_COLOURS;
+    let mut out = [Color32::BLACK; 7];
+    let mut i = 0;
+    while i < out.len() {
+        out[i] = Color32::from_rgb(c[i].0, c[i].1, c[i].2);
+        i += 1;
+    }
+    out
+};
+
+/// The design-palette slot of a design colour (for exporting it in the same colour); 0 for
+/// a colour outside the palette.
+#[must_use]
+pub fn design_slot(colour: Color32) -> usize {
+    crate::export::palette::slot_of((colour.r(), colour.g(), colour.b())).unwrap_or(0)
+}
 
 /// The first palette colour not in `taken` (the colours of the designs already open); when
 /// all are taken, the colours repeat in order.

@@ -136,7 +136,7 @@ pub(crate) fn coherent4<'a>(
         let scale2 = (-2.0 * log_scale[i]).exp();
         Coherent {
             s: finish(
-                inc.eta_s.re,
+                inc.eta_s,
                 bs.lane(i),
                 cs.lane(i),
                 sub.eta_s,
@@ -144,7 +144,7 @@ pub(crate) fn coherent4<'a>(
                 scale2,
             ),
             p: finish(
-                inc.eta_p.re,
+                inc.eta_p,
                 bp.lane(i),
                 cp.lane(i),
                 sub.eta_p,

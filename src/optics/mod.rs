@@ -23,17 +23,24 @@
 //!   R, T, A are fractions 0..1 that sum to 1. The amplitude t is the ratio of electric
 //!   fields: t_s = 2η₀/(η₀B + C), and t_p the same times cos θ₀ / cos θ_sub.
 //! * **Incident medium.** It must be transparent; its k is ignored (only Re N enters η₀).
-//! * **Thick substrate.** A substrate with a thickness is incoherent: the coating's responses
-//!   from both sides and the bare back surface are combined by intensity, with the
-//!   substrate's absorption exp(−4π Im(q) d / λ) over the oblique path (see [`thick`]). In the
-//!   coherent sub-problems the substrate counts with its real index; its k acts through that
-//!   path loss only.
+//! * **Thick substrate.** A substrate with a thickness is incoherent: each of its faces (the
+//!   coating, and the back face — bare or with its own coating) is solved coherently from
+//!   outside and from inside, and the two are combined by intensity with the substrate's
+//!   absorption exp(−4π Im(q) d / λ) over the oblique path (see [`thick`]). The substrate
+//!   keeps its complex index N throughout: as the exit medium of the problems solved from
+//!   outside, and as the (absorbing) incident medium of those solved from inside, where
+//!   r = (η₀B − C)/(η₀B + C) with the complex η₀ and T = |t_tan|² Re(η_exit)/Re(η₀) with
+//!   t_tan = 2η₀/(η₀B + C), both polarisations (for p that is the flux Re(N cos θ*) of the
+//!   incoherent-layer method). A semi-infinite substrate that the light starts in (light from
+//!   the back with no thickness) counts with its real index.
+//! * **Back face.** Its coating is listed like the front one, from the substrate outward
+//!   (layer 1 touches the substrate). Light from the back meets the back face first.
 
 mod lanes;
 pub mod thick;
 mod tmm;
 
-pub use thick::{ThickSides, combine_back, combine_front};
+pub use thick::{Face, combine};
 pub use tmm::{Amplitudes, Coherent, Tilted, coherent};
 
 use num_complex::Complex64;
@@ -65,6 +72,9 @@ pub struct StackAt<'a> {
     pub materials: &'a [Complex64],
     /// Layers in deposition order (layer 1, on the substrate, first): (material, nm).
     pub layers: &'a [(usize, f64)],
+    /// The coating on the substrate's back face, layer 1 (on the substrate) first; empty for
+    /// a bare back face. Counts only with a thick substrate.
+    pub back_layers: &'a [(usize, f64)],
     /// Substrate thickness in mm; `None` for a semi-infinite substrate.
     pub substrate_mm: Option<f64>,
 }
@@ -115,17 +125,21 @@ impl Response {
     }
 }
 
-/// The media of the coherent problems one point needs, for one Snell invariant.
+/// The media of the coherent problems one point needs, for one Snell invariant: each is
+/// (incident medium, exit medium) of one coherent sub-problem.
 struct Setup {
     snell: f64,
-    /// Incident and exit media of the coating seen from the incident medium.
-    front: (Tilted, Tilted),
-    /// Incident and exit media of the coating seen from inside the substrate.
-    back: (Tilted, Tilted),
-    /// Light from the front needs the `front` problem.
-    need_front: bool,
-    /// Light from the back, and every thick substrate, needs the `back` problem.
-    need_back: bool,
+    /// The coating seen from the incident medium (light from the front).
+    front_out: (Tilted, Tilted),
+    /// The coating seen from inside the substrate (light from the back, and every thick
+    /// substrate).
+    front_in: (Tilted, Tilted),
+    /// The back face seen from inside the substrate (thick substrates).
+    back_in: (Tilted, Tilted),
+    /// The back face seen from the exit medium (thick substrates, light from the back).
+    back_out: (Tilted, Tilted),
+    /// Which of the four problems this point needs, in the order above.
+    need: [bool; 4],
 }
 
 impl Setup {
@@ -139,81 +153,69 @@ impl Setup {
         };
         let snell = from.re * aoi_rad.sin();
         let thick = stack.substrate_mm.is_some();
-        // A thick substrate counts with its real index in the coherent problems.
-        let sub_as_exit = if thick {
-            real(stack.substrate)
-        } else {
+        // A thick substrate keeps its complex index in every sub-problem; a semi-infinite one
+        // that the light starts in counts as transparent.
+        let sub_inside = if thick {
             stack.substrate
+        } else {
+            real(stack.substrate)
         };
+        let tilt = |n: Complex64| Tilted::new(n, snell);
+        let (sub, exit_real) = (tilt(stack.substrate), tilt(real(stack.exit)));
         Self {
             snell,
-            front: (
-                Tilted::new(real(stack.incident), snell),
-                Tilted::new(sub_as_exit, snell),
-            ),
-            back: (
-                Tilted::new(real(stack.substrate), snell),
-                Tilted::new(stack.incident, snell),
-            ),
-            need_front: side == Side::Front,
-            need_back: side == Side::Back || thick,
+            front_out: (tilt(real(stack.incident)), sub),
+            front_in: (tilt(sub_inside), tilt(stack.incident)),
+            back_in: (sub, tilt(stack.exit)),
+            back_out: (exit_real, sub),
+            need: [
+                side == Side::Front,
+                side == Side::Back || thick,
+                thick,
+                thick && side == Side::Back,
+            ],
         }
     }
 
-    /// Combines the coating's coherent results with the substrate into the response.
+    /// Combines the coherent results (in the order of `need`) with the substrate into the
+    /// response.
     fn assemble(
         &self,
         stack: &StackAt<'_>,
         wavelength_nm: f64,
         side: Side,
-        front: Option<Coherent>,
-        back: Option<Coherent>,
+        solved: &[Option<Coherent>; 4],
     ) -> Response {
-        let (front, back) = (front.unwrap_or_default(), back.unwrap_or_default());
+        let [front_out, front_in, back_in, back_out] = solved.map(Option::unwrap_or_default);
         let Some(substrate_mm) = stack.substrate_mm else {
             return match side {
-                Side::Front => front.response(),
-                Side::Back => back.response(),
+                Side::Front => front_out.response(),
+                Side::Back => front_in.response(),
             };
         };
-        let snell = self.snell;
-        let sub_real = Tilted::new(Complex64::new(stack.substrate.re, 0.0), snell);
-        let internal = thick::internal_transmittance(
-            Tilted::new(stack.substrate, snell).q,
-            substrate_mm * 1e6,
-            wavelength_nm,
-        );
-        let none = std::iter::empty();
-        // The bare back surface seen from inside the substrate.
-        let back_inside = coherent(
-            &sub_real,
-            none.clone(),
-            &Tilted::new(stack.exit, snell),
-            wavelength_nm,
-        );
-        let (coating, outcome) = match side {
-            Side::Front => {
-                let sides = ThickSides {
-                    coating_in: front,
-                    coating_inside: back,
-                    back_inside,
-                    internal,
-                };
-                (front, combine_front(&sides))
-            }
-            Side::Back => {
-                let exit_in = Tilted::new(Complex64::new(stack.exit.re, 0.0), snell);
-                let coating_in = coherent(&exit_in, none, &sub_real, wavelength_nm);
-                let sides = ThickSides {
-                    coating_in,
-                    coating_inside: back,
-                    back_inside,
-                    internal,
-                };
-                (back, combine_back(&sides))
-            }
+        let internal =
+            thick::internal_transmittance(self.back_in.0.q, substrate_mm * 1e6, wavelength_nm);
+        let lossless = stack.substrate.im == 0.0;
+        let faces = |outside: &Coherent, inside: &Coherent| {
+            [
+                Face::new(&outside.s, &inside.s, lossless),
+                Face::new(&outside.p, &inside.p, lossless),
+            ]
         };
-        let [(r_s, t_s, a_s), (r_p, t_p, a_p)] = outcome;
+        let (coating, first, second) = match side {
+            Side::Front => (
+                front_out,
+                faces(&front_out, &front_in),
+                faces(&back_out, &back_in),
+            ),
+            Side::Back => (
+                front_in,
+                faces(&back_out, &back_in),
+                faces(&front_out, &front_in),
+            ),
+        };
+        let (r_s, t_s, a_s) = thick::combine(&first[0], &second[0], internal);
+        let (r_p, t_p, a_p) = thick::combine(&first[1], &second[1], internal);
         Response {
             r_s,
             r_p,
@@ -239,7 +241,7 @@ impl Setup {
 /// let stack = StackAt {
 ///     incident: Complex64::new(1.0, 0.0), substrate: glass, exit: Complex64::new(1.0, 0.0),
 ///     materials: &[Complex64::new(1.38, 0.0)], layers: &[(0, 550.0 / (4.0 * 1.38))],
-///     substrate_mm: None,
+///     back_layers: &[], substrate_mm: None,
 /// };
 /// let r = solve(&stack, 550.0, 0.0, Side::Front, &mut Vec::new());
 /// // Single quarter-wave layer: R = ((n0 ns − n1²)/(n0 ns + n1²))² (Macleod, ch. 3)
@@ -256,26 +258,38 @@ pub fn solve(
     scratch.clear();
     scratch.extend(stack.materials.iter().map(|&n| Tilted::new(n, setup.snell)));
     let mats: &[Tilted] = scratch;
-    let (fi, fs) = &setup.front;
-    let front = setup.need_front.then(|| {
-        coherent(
-            fi,
-            stack.layers.iter().map(|&(m, d)| (&mats[m], d)),
-            fs,
-            wavelength_nm,
-        )
+    let problems = [
+        (&setup.front_out, Order::Deposition, stack.layers),
+        (&setup.front_in, Order::Reversed, stack.layers),
+        (&setup.back_in, Order::Reversed, stack.back_layers),
+        (&setup.back_out, Order::Deposition, stack.back_layers),
+    ];
+    let solved = std::array::from_fn(|i| {
+        let ((inc, exit), order, layers) = problems[i];
+        setup.need[i].then(|| {
+            let layers = layers.iter().map(|&(m, d)| (&mats[m], d));
+            match order {
+                Order::Deposition => coherent(inc, layers, exit, wavelength_nm),
+                Order::Reversed => coherent(inc, layers.rev(), exit, wavelength_nm),
+            }
+        })
     });
-    let (bi, bs) = &setup.back;
-    let back = setup.need_back.then(|| {
-        coherent(
-            bi,
-            stack.layers.iter().rev().map(|&(m, d)| (&mats[m], d)),
-            bs,
-            wavelength_nm,
-        )
-    });
-    setup.assemble(stack, wavelength_nm, side, front, back)
+    setup.assemble(stack, wavelength_nm, side, &solved)
 }
+
+/// The order a coherent sub-problem takes a face's layers in: its loop starts at the layer
+/// touching the sub-problem's exit medium.
+#[derive(Clone, Copy)]
+enum Order {
+    /// Layer 1 (on the substrate) first: the substrate is the exit medium.
+    Deposition,
+    /// The outermost layer first: the substrate is the incident medium.
+    Reversed,
+}
+
+/// One coherent sub-problem of [`solve4`]: how to pick its (incident, exit) media from a
+/// [`Setup`], the order of its layers, and the layers.
+type Problem<'a> = (fn(&Setup) -> &(Tilted, Tilted), Order, &'a [(usize, f64)]);
 
 /// Reusable buffers for [`solve4`].
 #[derive(Debug, Default)]
@@ -285,7 +299,8 @@ pub struct Scratch4 {
 }
 
 /// [`solve`] for four points at once in SIMD lanes — four wavelengths of a spectrum or four
-/// angles of a scan. The four stacks must share `layers` (the same design); their indices,
+/// angles of a scan. The four stacks must share `layers`, `back_layers` and whether the
+/// substrate is thick (the same design); their indices,
 /// wavelengths and angles may differ. Agrees with [`solve`] to rounding.
 pub fn solve4(
     stacks: [&StackAt<'_>; 4],
@@ -310,23 +325,30 @@ pub fn solve4(
             .map(|l| lanes::Tilted4::gather(l.each_ref())),
     );
     let mats: &[lanes::Tilted4] = &scratch.packed;
-    let inc = |p: fn(&Setup) -> &(Tilted, Tilted)| setups.each_ref().map(|s| &p(s).0);
-    let sub = |p: fn(&Setup) -> &(Tilted, Tilted)| setups.each_ref().map(|s| &p(s).1);
-    let front = setups[0].need_front.then(|| {
-        let layers = layers.iter().map(|&(k, d)| (&mats[k], d));
-        lanes::coherent4(inc(|s| &s.front), layers, sub(|s| &s.front), wavelength_nm)
-    });
-    let back = setups[0].need_back.then(|| {
-        let layers = layers.iter().rev().map(|&(k, d)| (&mats[k], d));
-        lanes::coherent4(inc(|s| &s.back), layers, sub(|s| &s.back), wavelength_nm)
+    let problems: [Problem<'_>; 4] = [
+        (|s| &s.front_out, Order::Deposition, layers),
+        (|s| &s.front_in, Order::Reversed, layers),
+        (|s| &s.back_in, Order::Reversed, stacks[0].back_layers),
+        (|s| &s.back_out, Order::Deposition, stacks[0].back_layers),
+    ];
+    let solved: [Option<[Coherent; 4]>; 4] = std::array::from_fn(|i| {
+        let (pick, order, layers) = problems[i];
+        setups[0].need[i].then(|| {
+            let inc = setups.each_ref().map(|s| &pick(s).0);
+            let exit = setups.each_ref().map(|s| &pick(s).1);
+            let layers = layers.iter().map(|&(k, d)| (&mats[k], d));
+            match order {
+                Order::Deposition => lanes::coherent4(inc, layers, exit, wavelength_nm),
+                Order::Reversed => lanes::coherent4(inc, layers.rev(), exit, wavelength_nm),
+            }
+        })
     });
     std::array::from_fn(|i| {
         setups[i].assemble(
             stacks[i],
             wavelength_nm[i],
             side,
-            front.map(|f| f[i]),
-            back.map(|b| b[i]),
+            &solved.map(|p| p.map(|four| four[i])),
         )
     })
 }

@@ -157,28 +157,30 @@ pub fn coherent<'a>(
     }
     let cos_ratio = (incident.q / incident.n) / (substrate.q / substrate.n);
     let scale2 = (-2.0 * log_scale).exp();
-    let s = finish(incident.eta_s.re, bs, cs, substrate.eta_s, ONE, scale2);
-    let p = finish(
-        incident.eta_p.re,
-        bp,
-        cp,
-        substrate.eta_p,
-        cos_ratio,
-        scale2,
-    );
+    let s = finish(incident.eta_s, bs, cs, substrate.eta_s, ONE, scale2);
+    let p = finish(incident.eta_p, bp, cp, substrate.eta_p, cos_ratio, scale2);
     Coherent { s, p }
 }
 
-/// R, T, A and amplitudes from [B; C]; `eta0` is the polarisation's Re(η₀), `t_factor` turns
+/// R, T, A and amplitudes from [B; C]; `eta0` is the polarisation's η₀, `t_factor` turns
 /// the tangential-field ratio into the electric-field ratio, `scale2` = e^(−2·log scale).
+///
+/// An absorbing incident medium (only ever the inside of a thick substrate) keeps its complex
+/// η₀: r = (η₀B − C)/(η₀B + C), T = |t_tan|² Re(η_sub)/Re(η₀) with t_tan = 2η₀/(η₀B + C) —
+/// the flux of the transmitted wave over that of the incident wave alone, as the
+/// incoherent-layer method defines it — and A the flux the layers take, on the same scale.
 pub(crate) fn finish(
-    eta0: f64,
+    eta0: Complex64,
     b: Complex64,
     c: Complex64,
     eta_sub: Complex64,
     t_factor: Complex64,
     scale2: f64,
 ) -> Amplitudes {
+    if eta0.im != 0.0 {
+        return finish_absorbing(eta0, b, c, eta_sub, t_factor, scale2);
+    }
+    let eta0 = eta0.re;
     let den = eta0 * b + c;
     let den2 = den.norm_sqr();
     let r = (eta0 * b - c) / den;
@@ -189,6 +191,29 @@ pub(crate) fn finish(
     Amplitudes {
         r,
         t: 2.0 * eta0 / den * t_factor * scale,
+        reflectance: r.norm_sqr(),
+        transmittance,
+        absorptance,
+    }
+}
+
+/// [`finish`] for an incident medium with a complex admittance.
+fn finish_absorbing(
+    eta0: Complex64,
+    b: Complex64,
+    c: Complex64,
+    eta_sub: Complex64,
+    t_factor: Complex64,
+    scale2: f64,
+) -> Amplitudes {
+    let den = eta0 * b + c;
+    let r = (eta0 * b - c) / den;
+    let four = 4.0 * eta0.norm_sqr() / (eta0.re * den.norm_sqr());
+    let transmittance = four * eta_sub.re * scale2;
+    let absorptance = four * ((b * c.conj()).re - eta_sub.re * scale2);
+    Amplitudes {
+        r,
+        t: 2.0 * eta0 / den * t_factor * scale2.sqrt(),
         reflectance: r.norm_sqr(),
         transmittance,
         absorptance,

@@ -45,6 +45,7 @@ pub fn stack_side(
         exit: re(1.0),
         materials: &materials,
         layers: &idx,
+        back_layers: &[],
         substrate_mm: None,
     };
     solve(
