@@ -21,3 +21,11 @@ pub const ALL: [&str; 4] = [
     "Blocking shifts to shorter wavelengths as the angle of incidence grows: check every angle \
      and polarisation that matters.",
 ];
+
+/// Goes with every field-intensity (|E|²) profile, in the window, the command line and
+/// exported files.
+pub const FIELD: &str = "Stackwise does not predict laser-induced damage. The |E|² profile is \
+                         theoretical (ideal layers, the optical constants given); damage \
+                         thresholds depend on wavelength, pulse length, beam size, repetition \
+                         rate and the test protocol and must be measured (ISO 21254) on \
+                         coatings made in the real process.";

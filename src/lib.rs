@@ -13,5 +13,7 @@ pub mod design;
 pub mod export;
 pub mod gui;
 pub mod material;
+pub mod number;
 pub mod optics;
+pub mod optimize;
 pub mod table;

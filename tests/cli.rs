@@ -5,6 +5,7 @@ use std::path::PathBuf;
 use assert_cmd::Command;
 use stackwise::analysis::{spectrum, wavelengths_nm};
 use stackwise::design::file;
+use stackwise::number::Short;
 use stackwise::optics::Side;
 
 const EXAMPLES: [&str; 5] = [
@@ -105,9 +106,10 @@ fn the_cli_prints_exactly_what_the_engine_computes() {
     let s = spectrum(&d.resolve().unwrap(), &wl, 45.0, Side::Front).unwrap();
     for (i, line) in csv.lines().skip(1).enumerate() {
         let cells: Vec<&str> = line.split(',').collect();
-        assert_eq!(cells[0], s.wavelength_nm[i].to_string(), "wavelength");
-        assert_eq!(cells[1], s.curves.r_s[i].to_string(), "R_s at {}", cells[0]);
-        assert_eq!(cells[6], s.curves.t[i].to_string(), "T at {}", cells[0]);
+        let text = |x: f64| Short(x).to_string();
+        assert_eq!(cells[0], text(s.wavelength_nm[i]), "wavelength");
+        assert_eq!(cells[1], text(s.curves.r_s[i]), "R_s at {}", cells[0]);
+        assert_eq!(cells[6], text(s.curves.t[i]), "T at {}", cells[0]);
     }
     // The mirror meets its specification: R_s > 99.8 % at 1064 nm, 45°.
     let row = rows(&csv)
@@ -326,4 +328,273 @@ fn compare_prints_each_designs_band_figures() {
         "650",
     ]);
     assert!(e.contains("2 values required"), "{e}");
+}
+
+/// A design of `pairs` quarter-wave (HL) pairs of 2.3 / 1.45 at 550 nm on 1.52, as RON.
+fn long_stack(pairs: usize) -> String {
+    let pair = format!(
+        "        (material: \"H\", nm: {}),\n        (material: \"L\", nm: {}),\n",
+        550.0 / (4.0 * 2.3),
+        550.0 / (4.0 * 1.45)
+    );
+    let layers = pair.repeat(pairs);
+    format!(
+        "(\n    format: 1,\n    name: \"Long stack\",\n    reference_nm: 550.0,\n    \
+         incident: \"Air\",\n    substrate: \"S\",\n    substrate_mm: None,\n    \
+         exit: \"Air\",\n    layers: [\n{layers}    ],\n    materials: [\n        \
+         (name: \"S\", model: Constant(n: 1.52)),\n        \
+         (name: \"H\", model: Constant(n: 2.3)),\n        \
+         (name: \"L\", model: Constant(n: 1.45)),\n    ],\n)\n"
+    )
+}
+
+fn s(p: &std::path::Path) -> &str {
+    p.to_str().expect("UTF-8 path")
+}
+
+#[test]
+fn out_never_replaces_an_input() {
+    let dir = tempfile::tempdir().unwrap();
+    let design = dir.path().join("d.ron");
+    std::fs::copy(here("designs/camera-window-ar.ron"), &design).unwrap();
+    let original = std::fs::read(&design).unwrap();
+    let dotted = dir.path().join(".").join("d.ron");
+    let link = dir.path().join("link.ron");
+    std::os::unix::fs::symlink(&design, &link).unwrap();
+    for out in [&design, &dotted, &link] {
+        for args in [
+            vec!["spectrum", s(&design), "--out", s(out)],
+            vec!["report", s(&design), "--out", s(out)],
+            vec![
+                "compare",
+                s(&design),
+                s(&design),
+                "--from",
+                "400",
+                "--to",
+                "700",
+                "--out",
+                s(out),
+            ],
+        ] {
+            let e = fails(&args);
+            assert!(
+                e.contains("is also an input of this command"),
+                "{args:?}: {e}"
+            );
+        }
+    }
+    // The input given through a link, the output by its real name.
+    let e = fails(&["spectrum", s(&link), "--out", s(&design)]);
+    assert!(e.contains("is also an input"), "{e}");
+    // A plot whose input happens to carry the output's name.
+    let svg_named = dir.path().join("d.svg");
+    std::fs::copy(&design, &svg_named).unwrap();
+    let e = fails(&["plot", s(&svg_named), "--out", s(&svg_named)]);
+    assert!(e.contains("is also an input"), "{e}");
+    assert_eq!(
+        std::fs::read(&svg_named).unwrap(),
+        original,
+        "plot input untouched"
+    );
+    assert_eq!(
+        std::fs::read(&design).unwrap(),
+        original,
+        "design untouched"
+    );
+    // A different file in the same folder is fine.
+    ok(&[
+        "spectrum",
+        s(&design),
+        "--out",
+        s(&dir.path().join("d.csv")),
+    ]);
+}
+
+#[test]
+fn out_respects_read_only_files_and_keeps_modes() {
+    use std::os::unix::fs::PermissionsExt as _;
+    let dir = tempfile::tempdir().unwrap();
+    let design = here("designs/camera-window-ar.ron");
+    let out = dir.path().join("out.csv");
+    std::fs::write(&out, "keep").unwrap();
+    std::fs::set_permissions(&out, std::fs::Permissions::from_mode(0o444)).unwrap();
+    let e = fails(&["spectrum", s(&design), "--out", s(&out)]);
+    assert!(e.contains("read-only"), "{e}");
+    assert_eq!(std::fs::read_to_string(&out).unwrap(), "keep", "untouched");
+    let mode = |p: &std::path::Path| std::fs::metadata(p).unwrap().permissions().mode() & 0o777;
+    assert_eq!(mode(&out), 0o444, "mode untouched");
+    // A writable file is replaced and keeps its mode.
+    std::fs::set_permissions(&out, std::fs::Permissions::from_mode(0o604)).unwrap();
+    ok(&["spectrum", s(&design), "--out", s(&out)]);
+    assert!(
+        std::fs::read_to_string(&out)
+            .unwrap()
+            .starts_with("wavelength_nm,"),
+        "replaced"
+    );
+    assert_eq!(mode(&out), 0o604, "mode kept");
+}
+
+#[test]
+fn out_writes_into_pipes_and_devices() {
+    use std::os::unix::fs::FileTypeExt as _;
+    let design = here("designs/camera-window-ar.ron");
+    let (csv, _) = ok(&["spectrum", s(&design), "--out", "/dev/stdout"]);
+    assert!(csv.starts_with("wavelength_nm,R_s"), "{csv}");
+    assert_eq!(csv.lines().count(), 402, "header and 401 rows");
+
+    let dir = tempfile::tempdir().unwrap();
+    let fifo = dir.path().join("pipe");
+    let made = std::process::Command::new("mkfifo")
+        .arg(&fifo)
+        .status()
+        .unwrap();
+    assert!(made.success(), "mkfifo");
+    let reader = {
+        let fifo = fifo.clone();
+        std::thread::Builder::new()
+            .name("fifo-reader".into())
+            .spawn(move || std::fs::read_to_string(fifo).unwrap())
+            .unwrap()
+    };
+    ok(&["report", s(&design), "--format", "csv", "--out", s(&fifo)]);
+    let text = reader.join().unwrap();
+    assert!(
+        text.contains("layer"),
+        "report came through the pipe: {text}"
+    );
+    assert!(
+        std::fs::symlink_metadata(&fifo)
+            .unwrap()
+            .file_type()
+            .is_fifo(),
+        "the pipe is still a pipe"
+    );
+}
+
+#[test]
+fn ten_thousand_layers_compute_finite_values_and_short_csv() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("long.ron");
+    std::fs::write(&path, long_stack(5000)).unwrap();
+    let (csv, _) = ok(&[
+        "spectrum",
+        s(&path),
+        "--from",
+        "400",
+        "--to",
+        "700",
+        "--step",
+        "10",
+    ]);
+    let rows = rows(&csv);
+    assert_eq!(rows.len(), 31, "rows");
+    for r in &rows {
+        assert!(r.iter().all(|x| x.is_finite()), "{r:?}");
+        assert!((r[3] + r[6] + r[9] - 1.0).abs() < 1e-9, "R+T+A at {}", r[0]);
+    }
+    // 600 pairs: T at the centre is about 1e-240 (see the closed form in tests/properties.rs),
+    // written with an exponent rather than as hundreds of digits.
+    std::fs::write(&path, long_stack(600)).unwrap();
+    let (csv, _) = ok(&[
+        "spectrum",
+        s(&path),
+        "--from",
+        "550",
+        "--to",
+        "550",
+        "--step",
+        "1",
+    ]);
+    let line = csv.lines().nth(1).unwrap();
+    assert!(line.len() < 250, "short: {line}");
+    let t: f64 = line.split(',').nth(6).unwrap().parse().unwrap();
+    assert!(t > 0.0 && t < 1e-200, "T = {t:e}");
+}
+
+#[test]
+fn impossible_work_is_refused_before_it_starts() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("long.ron");
+    std::fs::write(&path, long_stack(5000)).unwrap();
+    let started = std::time::Instant::now();
+    let e = fails(&[
+        "spectrum",
+        s(&path),
+        "--from",
+        "400",
+        "--to",
+        "590",
+        "--step",
+        "0.0001",
+    ]);
+    assert!(
+        e.contains("layer·points") && e.contains("10000 layers × 190000"),
+        "{e}"
+    );
+    assert!(
+        e.contains("larger step") && e.contains("at most 100000 wavelengths"),
+        "{e}"
+    );
+    assert!(started.elapsed().as_secs() < 20, "refused quickly");
+    // The plot's size is checked before its sweep: the size error comes, not the work error.
+    let e = fails(&[
+        "plot",
+        s(&path),
+        "--out",
+        s(&dir.path().join("p.svg")),
+        "--step",
+        "0.0001",
+        "--width",
+        "9000",
+    ]);
+    assert!(e.contains("image width 9000 px"), "{e}");
+    // PNG pixel cap advice suggests SVG; an SVG of that size is fine.
+    let design = here("designs/camera-window-ar.ron");
+    let png = dir.path().join("p.png");
+    let e = fails(&[
+        "plot",
+        s(&design),
+        "--out",
+        s(&png),
+        "--width",
+        "8000",
+        "--height",
+        "8000",
+    ]);
+    assert!(e.contains("use SVG"), "{e}");
+    let svg = dir.path().join("p.svg");
+    ok(&[
+        "plot",
+        s(&design),
+        "--out",
+        s(&svg),
+        "--width",
+        "8000",
+        "--height",
+        "8000",
+    ]);
+}
+
+#[test]
+fn a_mistyped_command_is_named_as_one() {
+    let design = here("designs/camera-window-ar.ron");
+    let e = fails(&["colr", s(&design)]);
+    assert!(e.starts_with("error: unknown command `colr`"), "{e}");
+    assert!(
+        e.contains("spectrum") && e.contains("plot") && e.contains("compare"),
+        "{e}"
+    );
+    assert!(!e.contains("window"), "no attempt to open the window: {e}");
+    let e = fails(&["spectrun", s(&design)]);
+    assert!(e.contains("did you mean `spectrum`"), "{e}");
+}
+
+#[test]
+fn extreme_values_in_a_file_are_refused_by_name() {
+    let e = fails(&["spectrum", s(&here("tests/broken/huge_layer.ron"))]);
+    assert!(e.contains("layer 1 nm is 1e308"), "{e}");
+    let e = fails(&["info", s(&here("tests/broken/tiny_reference.ron"))]);
+    assert!(e.contains("reference_nm is 1e-308"), "{e}");
 }

@@ -124,11 +124,11 @@ fn failed_save_leaves_the_old_file() {
     let e = file::load(&target).unwrap_err().to_string();
     assert!(e.starts_with("cannot read the design file"), "{e}");
 
-    // A folder where the temporary file should go makes the write fail: the old file stays.
-    let path = dir.path().join("kept.ron");
+    // A name so long that no temporary name fits beside it (Linux allows 255 bytes) makes the
+    // write fail: the old file stays.
+    let path = dir.path().join(format!("{}.ron", "k".repeat(249)));
     let old = Design::new_empty("Old");
-    file::save(&path, &old).unwrap();
-    std::fs::create_dir(dir.path().join("kept.ron.tmp")).unwrap();
+    std::fs::write(&path, file::to_ron_string(&old).unwrap()).unwrap();
     assert!(
         file::save(&path, &Design::new_empty("New")).is_err(),
         "write must fail"
@@ -172,6 +172,34 @@ const BROKEN: &[(&str, Expect)] = &[
     (
         "format_zero.ron",
         Load(None, "format 0 is not a design-file format"),
+    ),
+    (
+        "huge_cauchy.ron",
+        Validate("entry 3 (\"L\"): Cauchy b is 1e300, outside"),
+    ),
+    (
+        "huge_index.ron",
+        Validate("entry 2 (\"H\"): constant n is 1e200, outside"),
+    ),
+    (
+        "huge_k.ron",
+        Validate("entry 2 (\"H\"): constant k is 1e300, outside the physical range 0 to 10000"),
+    ),
+    (
+        "huge_layer.ron",
+        Validate("layer 1 nm is 1e308, outside the physical range 0 to 1000000"),
+    ),
+    (
+        "huge_sellmeier.ron",
+        Validate("entry 3 (\"L\"): Sellmeier b2 is 1e250, outside"),
+    ),
+    (
+        "huge_substrate.ron",
+        Validate("substrate_mm is 1e308, outside the physical range"),
+    ),
+    (
+        "huge_table_n.ron",
+        Validate("entry 2 (\"H\"): table row 2 n is 1e300, outside"),
     ),
     (
         "inf_thickness.ron",
@@ -236,6 +264,18 @@ const BROKEN: &[(&str, Expect)] = &[
     (
         "target_unknown_quantity.ron",
         Load(Some(19), "variant named `Reflectance`"),
+    ),
+    (
+        "tiny_index.ron",
+        Validate("entry 2 (\"H\"): constant n is 1e-300, outside the physical range 0.001 to 1000"),
+    ),
+    (
+        "tiny_reference.ron",
+        Validate("reference_nm is 1e-308, outside the physical range 1 to 1000000"),
+    ),
+    (
+        "tiny_table_wavelength.ron",
+        Validate("entry 2 (\"H\"): table row 1 wavelength (nm) is 1e-300, outside"),
     ),
     ("truncated.ron", Load(Some(11), "the file ends too soon")),
     ("unclosed_string.ron", Load(Some(5), "expected comma")),

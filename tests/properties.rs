@@ -8,7 +8,7 @@ use approx::assert_relative_eq;
 use common::{re, stack, stack_side};
 use num_complex::Complex64;
 use proptest::prelude::*;
-use stackwise::optics::{Scratch4, Side, StackAt, Tilted, solve, solve4};
+use stackwise::optics::{Response, Scratch4, Side, StackAt, Tilted, solve, solve4};
 
 /// Recursive reflection/transmission (Rouard's method), written independently of the matrix
 /// code: starting at the substrate, each layer j between the medium above (a) and its own
@@ -24,6 +24,19 @@ fn rouard(
     wl: f64,
     aoi_deg: f64,
 ) -> [(Complex64, f64); 2] {
+    rouard_log(incident, layers, substrate, wl, aoi_deg).map(|(r, t, _)| (r, t))
+}
+
+/// [`rouard`], with t carried as a unit-size factor times e^(log |t|) so that it neither
+/// underflows nor overflows however long the stack; returns (r, T, ln T) for s and p. The
+/// reflection recursion needs no scaling (|r| stays near 1 or below).
+fn rouard_log(
+    incident: f64,
+    layers: &[(Complex64, f64)],
+    substrate: Complex64,
+    wl: f64,
+    aoi_deg: f64,
+) -> [(Complex64, f64, f64); 2] {
     let snell = incident * aoi_deg.to_radians().sin();
     let k0 = std::f64::consts::TAU / wl;
     let media: Vec<Tilted> = std::iter::once(Tilted::new(re(incident), snell))
@@ -32,12 +45,13 @@ fn rouard(
         .collect();
     // media[0] = incident, media[1..=n] = layers from the incident side, media[n+1] = substrate
     let n = layers.len();
-    let mut out = [(Complex64::default(), 0.0); 2];
+    let mut out = [(Complex64::default(), 0.0, 0.0); 2];
     for (pol, o) in out.iter_mut().enumerate() {
         let eta = |m: &Tilted| if pol == 0 { m.eta_s } else { m.eta_p };
         let (ea, eb) = (eta(&media[n]), eta(&media[n + 1]));
         let mut r = (ea - eb) / (ea + eb);
         let mut t = 2.0 * ea / (ea + eb);
+        let mut log_t = 0.0;
         for j in (1..=n).rev() {
             let d = layers[n - j].1;
             let phase = Complex64::i() * media[j].q * k0 * d;
@@ -48,9 +62,15 @@ fn rouard(
             let den = 1.0 + r_aj * r * e2;
             t = t_aj * t * e1 / den;
             r = (r_aj + r * e2) / den;
+            let size = t.norm();
+            if size > 0.0 {
+                log_t += size.ln();
+                t /= size;
+            }
         }
-        let big_t = eta(&media[n + 1]).re / eta(&media[0]).re * t.norm_sqr();
-        *o = (r, big_t);
+        let ratio = eta(&media[n + 1]).re / eta(&media[0]).re;
+        let log_big_t = ratio.ln() + t.norm_sqr().ln() + 2.0 * log_t;
+        *o = (r, log_big_t.exp(), log_big_t);
     }
     out
 }
@@ -243,4 +263,170 @@ fn coated_thick_substrate_from_both_sides() {
         f.r(),
         coated.r()
     );
+}
+
+/// Solves one stack at four wavelengths through the four-lane solver (the path every sweep
+/// takes) and at each wavelength through the one-point solver; both must agree.
+fn both_solvers(
+    layers: &[(Complex64, f64)],
+    substrate: Complex64,
+    wl: [f64; 4],
+    aoi_deg: f64,
+) -> [Response; 4] {
+    let materials: Vec<Complex64> = layers.iter().map(|l| l.0).collect();
+    let idx: Vec<(usize, f64)> = layers.iter().enumerate().map(|(i, l)| (i, l.1)).collect();
+    let s = StackAt {
+        incident: re(1.0),
+        substrate,
+        exit: re(1.0),
+        materials: &materials,
+        layers: &idx,
+        back_layers: &[],
+        substrate_mm: None,
+    };
+    let aoi = aoi_deg.to_radians();
+    let four = solve4([&s; 4], wl, [aoi; 4], Side::Front, &mut Scratch4::default());
+    for (k, f) in four.iter().enumerate() {
+        let one = solve(&s, wl[k], aoi, Side::Front, &mut Vec::new());
+        for (a, b) in [
+            (one.r_s, f.r_s),
+            (one.r_p, f.r_p),
+            (one.t_s, f.t_s),
+            (one.t_p, f.t_p),
+        ] {
+            assert!(
+                (a - b).abs() <= 1e-9 * a.abs().max(1e-300),
+                "lanes vs one point at {} nm: {one:?} vs {f:?}",
+                wl[k]
+            );
+        }
+    }
+    four
+}
+
+/// Every figure finite, within 0..1 and R + T + A = 1.
+fn assert_sound(r: &Response, what: &str) {
+    for (name, x) in [
+        ("R_s", r.r_s),
+        ("R_p", r.r_p),
+        ("T_s", r.t_s),
+        ("T_p", r.t_p),
+        ("A_s", r.a_s),
+        ("A_p", r.a_p),
+    ] {
+        assert!(
+            x.is_finite() && (-1e-9..=1.0 + 1e-9).contains(&x),
+            "{what}: {name} = {x}"
+        );
+    }
+    assert!((r.r_s + r.t_s + r.a_s - 1.0).abs() < 1e-9, "{what}: s sum");
+    assert!((r.r_p + r.t_p + r.a_p - 1.0).abs() < 1e-9, "{what}: p sum");
+}
+
+/// Compares the solver with the log-scaled recursive method: r to `tol_r`, and T in
+/// logarithms (relative 1e-6) wherever the recursive T is representable.
+fn agrees_with_recursive(
+    r: &Response,
+    layers: &[(Complex64, f64)],
+    sub: Complex64,
+    wl: f64,
+    aoi: f64,
+    tol_r: f64,
+) {
+    let [(rs, ts, lts), (rp, tp, ltp)] = rouard_log(1.0, layers, sub, wl, aoi);
+    assert!(
+        (r.amp_r_s - rs).norm() < tol_r,
+        "{wl} nm {aoi}°: r_s {} vs {rs}",
+        r.amp_r_s
+    );
+    assert!(
+        (r.amp_r_p - rp).norm() < tol_r,
+        "{wl} nm {aoi}°: r_p {} vs {rp}",
+        r.amp_r_p
+    );
+    for (t, t_ref, lt_ref, pol) in [(r.t_s, ts, lts, "s"), (r.t_p, tp, ltp, "p")] {
+        if t_ref > 1e-290 {
+            assert!(
+                (t.ln() - lt_ref).abs() < 1e-6 * lt_ref.abs().max(1.0),
+                "{wl} nm {aoi}°: T_{pol} {t:e} vs {t_ref:e}"
+            );
+        } else {
+            assert!(t < 1e-280, "{wl} nm {aoi}°: T_{pol} {t:e} vs e^{lt_ref}");
+        }
+    }
+}
+
+#[test]
+fn ten_thousand_layer_quarter_wave_stack_stays_finite_and_agrees() {
+    // 5 000 (HL) pairs of 2.3 / 1.45 quarter waves at 550 nm on 1.52: the most layers the
+    // stack notation allows. Without rescaling, 1 000 pairs already overflow to NaN.
+    let layers = common::qw_stack(2.3, 1.45, 5000, false, 550.0);
+    assert_eq!(layers.len(), 10_000, "layer count");
+    let sub = re(1.52);
+    for aoi in [0.0, 45.0] {
+        for wl in [[400.0, 480.0, 530.0, 550.0], [560.0, 600.0, 650.0, 700.0]] {
+            let four = both_solvers(&layers, sub, wl, aoi);
+            for (k, r) in four.iter().enumerate() {
+                assert_sound(r, &format!("{} nm {aoi}°", wl[k]));
+                agrees_with_recursive(r, &layers, sub, wl[k], aoi, 1e-7);
+            }
+        }
+    }
+    // At the centre at normal incidence, each quarter wave turns the admittance below it into
+    // n²/Y; with L on the substrate and H facing the air, Y = n_s (n_H/n_L)^(2N), so
+    // R = ((1 − Y)/(1 + Y))² (Macleod, Thin-Film Optical Filters, ch. 6) and T = 4Y/(1 + Y)².
+    let [centre, ..] = both_solvers(&layers, sub, [550.0; 4], 0.0);
+    let log_y = 1.52f64.ln() + 10_000.0 * (2.3f64 / 1.45).ln();
+    assert!(log_y > 4000.0, "T underflows any double: ln Y = {log_y}");
+    assert!((centre.r() - 1.0).abs() < 1e-12, "R = {}", centre.r());
+    assert!(centre.t() < 1e-300, "T = {:e}", centre.t());
+}
+
+#[test]
+fn six_hundred_pairs_carry_a_tiny_transmittance_exactly() {
+    // 600 pairs: [B; C] passes 2^200 and is rescaled, and T ≈ 4/Y ≈ e^(−553) is still a
+    // double; the rescaled product must give it to the recursive method's precision.
+    let layers = common::qw_stack(2.3, 1.45, 600, false, 550.0);
+    let sub = re(1.52);
+    let four = both_solvers(&layers, sub, [540.0, 550.0, 560.0, 520.0], 0.0);
+    for (k, r) in four.iter().enumerate() {
+        assert_sound(r, "600 pairs");
+        assert!(r.t() > 0.0 && r.t() < 1e-200, "T = {:e}", r.t());
+        agrees_with_recursive(r, &layers, sub, [540.0, 550.0, 560.0, 520.0][k], 0.0, 1e-9);
+    }
+    // Closed form at the centre (see above): T = 4Y/(1 + Y)² with Y = n_s (n_H/n_L)^(2N), so
+    // ln T = ln 4 − ln Y − 2 ln(1 + 1/Y).
+    let log_y = 1.52f64.ln() + 1200.0 * (2.3f64 / 1.45).ln();
+    let expect = 4f64.ln() - log_y - 2.0 * (-log_y).exp().ln_1p();
+    assert!(
+        (four[1].t().ln() - expect).abs() < 1e-6 * expect.abs(),
+        "ln T {} vs {expect}",
+        four[1].t().ln()
+    );
+}
+
+#[test]
+fn eight_hundred_silver_and_silica_layers_stay_finite_and_agree() {
+    // 400 pairs of 20 nm silver and 100 nm silica on glass. Silver at 550 nm:
+    // N = 0.13423 + 3.17225i (Rakić et al. 1998 Lorentz–Drude check value in the reference
+    // materials table); silica 1.46 (common practice). Without rescaling the product overflows.
+    let ag = Complex64::new(0.13423, 3.17225);
+    let layers: Vec<(Complex64, f64)> = (0..800)
+        .map(|i| {
+            if i % 2 == 0 {
+                (ag, 20.0)
+            } else {
+                (re(1.46), 100.0)
+            }
+        })
+        .collect();
+    let sub = re(1.52);
+    for aoi in [0.0, 60.0] {
+        let wl = [450.0, 500.0, 550.0, 700.0];
+        let four = both_solvers(&layers, sub, wl, aoi);
+        for (k, r) in four.iter().enumerate() {
+            assert_sound(r, &format!("Ag/SiO2 {} nm {aoi}°", wl[k]));
+            agrees_with_recursive(r, &layers, sub, wl[k], aoi, 1e-9);
+        }
+    }
 }

@@ -9,6 +9,8 @@ use crate::design::ResolvedDesign;
 use crate::material::{Material, MaterialError, RangeWarning};
 use crate::optics::{Response, Scratch4, Side, StackAt, solve4};
 
+use super::limits::{check_finite, check_work};
+
 /// Sweeps with at least this many layer·point products run on all cores.
 pub const PARALLEL_MIN_WORK: usize = 50_000;
 
@@ -58,6 +60,43 @@ pub enum SweepError {
     TooManyPoints {
         /// How many the range and step would give.
         points: usize,
+    },
+    /// The sweep would take too long; refused before it starts.
+    #[error(
+        "this sweep is about {work:.2e} layer·points ({layers} layers × {points} wavelengths × \
+         {angles} angles), more than the {:.0e} one sweep may take (it would need about \
+         {seconds:.0} s); use a larger step (at most {fit} wavelengths or angles for this \
+         design) or fewer layers",
+        super::limits::MAX_WORK
+    )]
+    TooMuchWork {
+        /// Estimated layer·points.
+        work: f64,
+        /// Layers in the design.
+        layers: usize,
+        /// Wavelengths.
+        points: usize,
+        /// Angles.
+        angles: usize,
+        /// Rough time on this machine's cores.
+        seconds: f64,
+        /// How many points along the longer axis would fit.
+        fit: usize,
+    },
+    /// A computed value is not a finite number (the last guard; it is never written as data).
+    #[error(
+        "{quantity} came out as {value} at {wavelength_nm} nm, {aoi_deg}°; the result is not \
+         a number, so nothing was written; check the design's indices and thicknesses"
+    )]
+    NotANumber {
+        /// Which quantity, e.g. `T_s`.
+        quantity: &'static str,
+        /// The value, as text.
+        value: String,
+        /// Wavelength of the point.
+        wavelength_nm: f64,
+        /// Angle of incidence of the point (degrees).
+        aoi_deg: f64,
     },
     /// A material has no usable index somewhere in the sweep.
     #[error(transparent)]
@@ -377,6 +416,7 @@ pub fn spectrum(
     side: Side,
 ) -> Result<Spectrum, SweepError> {
     check_angle(aoi_deg)?;
+    check_work(d.layers.len(), wavelengths_nm.len(), 1)?;
     let mats = all_materials(d);
     let table = index_table(&mats, wavelengths_nm)?;
     let width = mats.len();
@@ -386,6 +426,7 @@ pub fn spectrum(
         let wl = lanes.map(|i| wavelengths_nm[i]);
         solve4(stacks.each_ref(), wl, [aoi; 4], side, scratch)
     });
+    check_finite(&responses, |i| wavelengths_nm[i], |_| aoi_deg)?;
     Ok(Spectrum {
         wavelength_nm: wavelengths_nm.to_vec(),
         aoi_deg,
@@ -405,6 +446,7 @@ pub fn angle_scan(
     for &a in aoi_deg {
         check_angle(a)?;
     }
+    check_work(d.layers.len(), 1, aoi_deg.len())?;
     let mats = all_materials(d);
     let table = index_table(&mats, &[wavelength_nm])?;
     let stack = stack_at(d, &table);
@@ -412,6 +454,7 @@ pub fn angle_scan(
         let aoi = lanes.map(|i| aoi_deg[i].to_radians());
         solve4([&stack; 4], [wavelength_nm; 4], aoi, side, scratch)
     });
+    check_finite(&responses, |_| wavelength_nm, |i| aoi_deg[i])?;
     Ok(AngleScan {
         aoi_deg: aoi_deg.to_vec(),
         wavelength_nm,

@@ -3,12 +3,27 @@
 //! Each command beyond a few lines has its own file here (its `Args` struct and a `run`
 //! function); this file holds the parser, the shared argument types and the dispatch.
 
+mod admittance;
+mod color;
+mod field;
+mod map;
+mod phase;
+mod views;
+
+pub use admittance::AdmittanceArgs;
+pub use color::ColorArgs;
+pub use field::{FieldArgs, SpArg};
+pub use map::{AngleRange, MapArgs, parse_angles};
+pub use phase::PhaseArgs;
+
 use std::io::{self, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
+pub mod optimize;
+
 use anyhow::{Context as _, Result, bail};
-use clap::{Args, Parser, Subcommand, ValueEnum};
+use clap::{Args, CommandFactory as _, FromArgMatches as _, Parser, Subcommand, ValueEnum};
 
 use crate::analysis::measured::{ValueScale, parse_measured_csv, rms_difference};
 use crate::analysis::{self, Warning};
@@ -25,6 +40,7 @@ mod tolerance;
 pub use monitor::MonitorArgs;
 pub use sensitivity::SensitivityArgs;
 pub use tolerance::ToleranceArgs;
+pub mod guard;
 
 /// Design and analyse optical thin-film coatings. With no command, opens the window.
 #[derive(Debug, Parser)]
@@ -317,6 +333,25 @@ pub enum Command {
     /// The optical monitoring signal through the run as CSV: deposited_nm,layer,signal; the
     /// per-layer table (start, end, turning points) on standard error.
     Monitor(MonitorArgs),
+    /// Phase (unwrapped, degrees), group delay (fs) and GDD (fs²) of r and t over wavelength
+    /// as CSV: wavelength_nm,phase_r_s_deg,phase_r_p_deg,phase_t_s_deg,phase_t_p_deg,
+    /// gd_r_s_fs,gd_r_p_fs,gdd_r_s_fs2,gdd_r_p_fs2.
+    Phase(PhaseArgs),
+    /// The electric-field intensity |E|² through the stack, relative to the incident wave, as
+    /// CSV: depth_nm,layer,e2 (depth from the incident side; layer 0 = substrate, N + 1 =
+    /// incident medium).
+    Field(FieldArgs),
+    /// The admittance locus at one wavelength as CSV: layer,re,im (layer 0 = the substrate's
+    /// admittance, last row N + 1 = the incident medium's).
+    Admittance(AdmittanceArgs),
+    /// The colour of reflected and transmitted light as CSV: light,X,Y,Z,x,y,L,a,b.
+    Color(ColorArgs),
+    /// R or T over wavelength × angle as CSV (wavelength_nm,aoi_deg,value), or a heat map
+    /// with --out FILE.png / FILE.svg.
+    Map(MapArgs),
+    /// Refines the thicknesses (with --needle: inserts layers too) to meet the design's
+    /// targets; writes the new design to --out and the merit to standard output.
+    Optimize(optimize::OptimizeArgs),
     /// The layer table of a design: material, nm, QWOT and optical thickness.
     Info {
         /// The design file (.ron).
@@ -325,11 +360,15 @@ pub enum Command {
 }
 
 /// Parses the process arguments and runs; `open_window` is called when no command is given.
+/// Before anything runs, a command's `--out` is checked against its inputs and the window's
+/// arguments against mistyped commands ([`guard`]).
 pub fn main(open_window: impl FnOnce(Vec<PathBuf>) -> Result<()>) -> ExitCode {
-    let cli = Cli::parse();
+    let matches = Cli::command().get_matches();
+    let cli = Cli::from_arg_matches(&matches).unwrap_or_else(|e| e.exit());
     let result = match cli.command {
-        None => open_window(cli.designs),
-        Some(cmd) => run(cmd, &mut io::stdout().lock(), &mut io::stderr().lock()),
+        None => guard::window_args(&cli.designs).and_then(|()| open_window(cli.designs)),
+        Some(cmd) => guard::outputs(&matches)
+            .and_then(|()| run(cmd, &mut io::stdout().lock(), &mut io::stderr().lock())),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,
@@ -496,6 +535,12 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
         Command::Tolerance(args) => tolerance::run(&args, stdout, stderr)?,
         Command::Sensitivity(args) => sensitivity::run(&args, stdout, stderr)?,
         Command::Monitor(args) => monitor::run(&args, stdout, stderr)?,
+        cmd @ (Command::Phase(_)
+        | Command::Field(_)
+        | Command::Admittance(_)
+        | Command::Color(_)
+        | Command::Map(_)) => views::run(&cmd, stdout, stderr)?,
+        Command::Optimize(args) => optimize::run(&args, stdout, stderr)?,
         Command::Info { design } => {
             let d = load_design(&design)?;
             info(&d, stdout)?;
@@ -553,22 +598,10 @@ fn info_table(out: &mut dyn Write, first: &str, rows: &[export::report::LayerRow
     Ok(())
 }
 
-/// The image format named by a file's extension.
-#[derive(Clone, Copy, PartialEq, Eq)]
-enum ImageKind {
-    Png,
-    Svg,
-}
-
-fn image_kind(path: &Path) -> Result<ImageKind> {
-    let ext = path
-        .extension()
-        .and_then(|e| e.to_str())
-        .map(str::to_ascii_lowercase);
-    match ext.as_deref() {
-        Some("png") => Ok(ImageKind::Png),
-        Some("svg") => Ok(ImageKind::Svg),
-        _ => bail!(
+fn image_kind(path: &Path) -> Result<export::plot::ImageFormat> {
+    match export::plot::ImageFormat::from_path(path) {
+        Some(k) => Ok(k),
+        None => bail!(
             "cannot tell the image format of {}: name the file .png or .svg",
             path.display()
         ),
@@ -577,6 +610,8 @@ fn image_kind(path: &Path) -> Result<ImageKind> {
 
 fn plot(a: &PlotArgs, stderr: &mut dyn Write) -> Result<()> {
     let kind = image_kind(&a.out)?;
+    // The size is checked before any sweep runs.
+    export::plot::check_size(kind, a.width, a.height)?;
     let first = load_design(&a.design)?;
     let wl = a
         .range
@@ -606,8 +641,8 @@ fn plot(a: &PlotArgs, stderr: &mut dyn Write) -> Result<()> {
     }
     let (w, h) = (a.width, a.height);
     let bytes = match kind {
-        ImageKind::Png => export::plot::render_png(&spec, w, h)?,
-        ImageKind::Svg => export::plot::render_svg(&spec, w, h)?.into_bytes(),
+        export::plot::ImageFormat::Png => export::plot::render_png(&spec, w, h)?,
+        export::plot::ImageFormat::Svg => export::plot::render_svg(&spec, w, h)?.into_bytes(),
     };
     export::write_atomic(&a.out, &bytes)
         .with_context(|| format!("cannot write {}", a.out.display()))?;
@@ -669,6 +704,13 @@ fn measured_cmd(a: &MeasuredArgs, stdout: &mut dyn Write, stderr: &mut dyn Write
              check the wavelength unit"
         );
     };
+    if !rms.is_finite() {
+        bail!(
+            "the RMS difference of {} from the design is not a finite number; check the \
+             measured values",
+            measured.display()
+        );
+    }
     writeln!(
         stdout,
         "{q} (mean of s and p) at {aoi}°: RMS difference {:.4} percentage points over {n} points, {lo}–{hi} nm",

@@ -6,8 +6,9 @@
 //! Reading does not check the content (materials exist, thicknesses make sense): that is
 //! [`Design::validate`], so a design with a fixable problem can still be opened.
 //!
-//! Writing is human-diffable: one layer per line, one target per line. Saving is atomic: the
-//! text goes to `<file>.tmp` beside the file, is flushed to disk, then renamed over the file.
+//! Writing is human-diffable: one layer per line, one target per line. Saving goes through
+//! [`write_atomic`] (see [`super::output`]): a temporary file beside the file is written,
+//! flushed to disk and renamed over it; a read-only file is refused.
 //!
 //! ```
 //! use stackwise::design::{file, Design};
@@ -18,12 +19,13 @@
 //! ```
 
 use std::fs;
-use std::io::{self, Write as _};
+use std::io;
 use std::path::{Path, PathBuf};
 
 use ron::ser::PrettyConfig;
 use serde::Deserialize;
 
+pub use super::output::write_atomic;
 use super::{Design, FORMAT};
 use crate::material::Model;
 
@@ -317,61 +319,15 @@ fn replace_line(text: &str, line: &str, with: &str) -> String {
         .join("\n")
 }
 
-/// Saves a design atomically: writes `<file>.tmp` in the same folder, flushes it to disk, and
-/// renames it over `path`. On any failure the previous file is left as it was.
+/// Saves a design atomically through [`write_atomic`]: a temporary file in the same folder is
+/// written, flushed to disk and renamed over `path`; a read-only file is refused. On any
+/// failure the previous file is left as it was.
 pub fn save(path: &Path, design: &Design) -> Result<(), DesignFileError> {
     let text = to_ron_string(design).map_err(|e| e.in_file(path))?;
     write_atomic(path, text.as_bytes()).map_err(|err| DesignFileError::Write {
         err,
         path: Some(path.into()),
     })
-}
-
-/// Writes `bytes` to `path` so that the file is either the old one or the whole new one, never
-/// half written: a `<name>.tmp` beside it is written and synced, then renamed over `path`, and
-/// the folder entry is synced where the platform allows. Used for designs and for every
-/// export.
-pub fn write_atomic(path: &Path, bytes: &[u8]) -> io::Result<()> {
-    let Some(file_name) = path.file_name() else {
-        return Err(io::Error::new(
-            io::ErrorKind::InvalidInput,
-            "the path does not end in a file name",
-        ));
-    };
-    let mut tmp_name = file_name.to_os_string();
-    tmp_name.push(".tmp");
-    let tmp = path.with_file_name(tmp_name);
-    let written = (|| {
-        let mut f = fs::File::create(&tmp)?;
-        f.write_all(bytes)?;
-        f.sync_all()?;
-        drop(f);
-        fs::rename(&tmp, path)
-    })();
-    if let Err(err) = written {
-        // Best effort: the write already failed, and a leftover .tmp is harmless.
-        fs::remove_file(&tmp).ok();
-        return Err(err);
-    }
-    sync_folder(path);
-    Ok(())
-}
-
-/// Flushes the folder entry after a rename where the platform allows it (Unix); failure only
-/// weakens durability after a power cut, so it is not an error.
-fn sync_folder(path: &Path) {
-    #[cfg(unix)]
-    {
-        let dir = match path.parent() {
-            Some(p) if !p.as_os_str().is_empty() => p,
-            _ => Path::new("."),
-        };
-        if let Ok(d) = fs::File::open(dir) {
-            d.sync_all().ok();
-        }
-    }
-    #[cfg(not(unix))]
-    let _ = path;
 }
 
 #[cfg(test)]

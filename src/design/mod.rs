@@ -20,8 +20,10 @@
 //! # Ok::<(), Box<dyn std::error::Error>>(())
 //! ```
 
+pub mod bounds;
 pub mod file;
 pub mod notation;
+pub mod output;
 mod quantity;
 mod target;
 mod thickness;

@@ -78,6 +78,13 @@ pub enum DesignError {
         /// What is wrong and how to fix it.
         what: String,
     },
+    /// A number outside its physical range (the ranges are in [`super::bounds`]); the message
+    /// names the field.
+    #[error("{what}; correct it in the design")]
+    OutOfRange {
+        /// The field, its value and the allowed range.
+        what: String,
+    },
     /// A layer number that the design does not have.
     #[error("there is no layer {layer}; the design has {count} layer(s), numbered from 1")]
     NoSuchLayer {
@@ -142,7 +149,8 @@ fn lookup(catalog: &Catalog<'_>, name: &str, place: &str) -> Result<Material, De
 impl Design {
     /// Checks everything that can be checked without computing a spectrum: the reference
     /// wavelength, the substrate thickness, the design's own materials (valid, uniquely
-    /// named), that every layer and medium names a known material, and the targets.
+    /// named), that every layer and medium names a known material, the targets, and that every
+    /// number lies in its physical range ([`super::bounds`]).
     pub fn validate(&self) -> Result<(), DesignError> {
         if !(self.reference_nm.is_finite() && self.reference_nm > 0.0) {
             return Err(DesignError::BadReference {
@@ -178,7 +186,7 @@ impl Design {
         for (i, t) in self.targets.iter().enumerate() {
             check_target(t).map_err(|what| DesignError::BadTarget { index: i + 1, what })?;
         }
-        Ok(())
+        super::bounds::check(self)
     }
 
     /// Validates the design and resolves every name into the engine's view.

@@ -1,5 +1,6 @@
-//! CSV of computed curves. Numbers are written in Rust's shortest round-trip form, so reading
-//! a file back gives exactly the numbers that were computed.
+//! CSV of computed curves. Numbers are written in Rust's shortest round-trip form (with an
+//! exponent for tiny and huge values, see [`Short`]), so reading a file back gives exactly the
+//! numbers that were computed.
 
 use std::io::{self, Write};
 
@@ -8,6 +9,7 @@ use crate::analysis::monitor::MonitorCurve;
 use crate::analysis::sensitivity::Sensitivity;
 use crate::analysis::tolerance::Envelope;
 use crate::analysis::{AngleScan, COLUMN_NAMES, Curves, Spectrum};
+use crate::number::Short;
 
 fn write_rows(mut w: impl Write, x_name: &str, x: &[f64], curves: &Curves) -> io::Result<()> {
     write!(w, "{x_name}")?;
@@ -17,9 +19,9 @@ fn write_rows(mut w: impl Write, x_name: &str, x: &[f64], curves: &Curves) -> io
     writeln!(w)?;
     let cols = curves.columns();
     for (i, xi) in x.iter().enumerate() {
-        write!(w, "{xi}")?;
+        write!(w, "{}", Short(*xi))?;
         for c in cols {
-            write!(w, ",{}", c[i])?;
+            write!(w, ",{}", Short(c[i]))?;
         }
         writeln!(w)?;
     }
@@ -47,7 +49,7 @@ pub fn write_angles(w: impl Write, s: &AngleScan) -> io::Result<()> {
 pub fn write_nk(mut w: impl Write, rows: &[(f64, f64, f64)]) -> io::Result<()> {
     writeln!(w, "wavelength_nm,n,k")?;
     for (wl, n, k) in rows {
-        writeln!(w, "{wl},{n},{k}")?;
+        writeln!(w, "{},{},{}", Short(*wl), Short(*n), Short(*k))?;
     }
     w.flush()
 }
@@ -140,19 +142,19 @@ pub fn write_compare(mut w: impl Write, rows: &[(String, Figures)]) -> io::Resul
             w,
             "{},{},{},{},{},{},{},{},{},{},{},{},{},{}",
             field(name),
-            f.from_nm,
-            f.to_nm,
+            Short(f.from_nm),
+            Short(f.to_nm),
             f.points,
-            r.mean,
-            r.min,
-            r.min_at_nm,
-            r.max,
-            r.max_at_nm,
-            t.mean,
-            t.min,
-            t.min_at_nm,
-            t.max,
-            t.max_at_nm
+            Short(r.mean),
+            Short(r.min),
+            Short(r.min_at_nm),
+            Short(r.max),
+            Short(r.max_at_nm),
+            Short(t.mean),
+            Short(t.min),
+            Short(t.min_at_nm),
+            Short(t.max),
+            Short(t.max_at_nm)
         )?;
     }
     w.flush()

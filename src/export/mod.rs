@@ -2,11 +2,12 @@
 //! (PNG and SVG) and the layer report (CSV, Markdown, HTML).
 
 pub mod csv;
+pub mod heatmap;
 pub mod palette;
 pub mod plot;
 pub mod report;
 
-pub use crate::design::file::write_atomic;
+pub use crate::design::output::{refuse_input, same_file, write_atomic};
 
 /// One line that goes on every exported image or report of blocking (optical density) data or
 /// of a laser mirror.
@@ -72,7 +73,9 @@ pub enum ExportError {
         max: u32,
     },
     /// Width × height too large to hold in memory comfortably.
-    #[error("image {width} × {height} px has more than {max} pixels; make it smaller or use SVG")]
+    #[error(
+        "a PNG of {width} × {height} px has more than {max} pixels; make it smaller or use SVG"
+    )]
     TooManyPixels {
         /// Width asked for.
         width: u32,

@@ -54,11 +54,11 @@ pub const MAX_PIXELS: u64 = 32_000_000;
 pub const PALETTE: [(u8, u8, u8); 7] = super::palette::DESIGN_COLOURS;
 
 /// The font family name the embedded font is registered under.
-const FONT: &str = "sans-serif";
+pub(super) const FONT: &str = "sans-serif";
 
 const GRID_FINE: RGBColor = RGBColor(236, 236, 236);
 const GRID_MAIN: RGBColor = RGBColor(205, 205, 205);
-const CAUTION_TEXT: RGBColor = RGBColor(150, 30, 0);
+pub(super) const CAUTION_TEXT: RGBColor = RGBColor(150, 30, 0);
 
 /// How a series' line is drawn.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
@@ -150,7 +150,45 @@ fn checked(axis: &'static str, (from, to): (f64, f64)) -> Result<Range<f64>, Exp
     }
 }
 
-fn check_size(width_px: u32, height_px: u32) -> Result<(), ExportError> {
+/// An image format the plots can be written in.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum ImageFormat {
+    /// A PNG bitmap: its size is capped by [`MAX_PIXELS`] as well.
+    Png,
+    /// An SVG drawing: only each side is capped.
+    Svg,
+}
+
+impl ImageFormat {
+    /// The format named by a file's extension (`.png` or `.svg`, any case).
+    ///
+    /// ```
+    /// use stackwise::export::plot::ImageFormat;
+    /// assert_eq!(ImageFormat::from_path("a/b.SVG".as_ref()), Some(ImageFormat::Svg));
+    /// assert_eq!(ImageFormat::from_path("plot.pdf".as_ref()), None);
+    /// ```
+    #[must_use]
+    pub fn from_path(path: &std::path::Path) -> Option<Self> {
+        let ext = path.extension()?.to_str()?.to_ascii_lowercase();
+        match ext.as_str() {
+            "png" => Some(Self::Png),
+            "svg" => Some(Self::Svg),
+            _ => None,
+        }
+    }
+}
+
+/// Checks an image size before anything is computed: each side within [`MIN_SIDE_PX`] to
+/// [`MAX_SIDE_PX`], and for PNG at most [`MAX_PIXELS`] in all (an SVG's size costs no memory).
+///
+/// ```
+/// use stackwise::export::plot::{ImageFormat, check_size};
+/// assert!(check_size(ImageFormat::Svg, 8000, 8000).is_ok());
+/// let e = check_size(ImageFormat::Png, 8000, 8000).unwrap_err().to_string();
+/// assert!(e.contains("use SVG"), "{e}");
+/// assert!(check_size(ImageFormat::Svg, 9000, 800).is_err());
+/// ```
+pub fn check_size(format: ImageFormat, width_px: u32, height_px: u32) -> Result<(), ExportError> {
     for (what, value) in [("width", width_px), ("height", height_px)] {
         if !(MIN_SIDE_PX..=MAX_SIDE_PX).contains(&value) {
             return Err(ExportError::BadSize {
@@ -161,7 +199,7 @@ fn check_size(width_px: u32, height_px: u32) -> Result<(), ExportError> {
             });
         }
     }
-    if u64::from(width_px) * u64::from(height_px) > MAX_PIXELS {
+    if format == ImageFormat::Png && u64::from(width_px) * u64::from(height_px) > MAX_PIXELS {
         return Err(ExportError::TooManyPixels {
             width: width_px,
             height: height_px,
@@ -172,7 +210,7 @@ fn check_size(width_px: u32, height_px: u32) -> Result<(), ExportError> {
 }
 
 /// Registers the embedded font once per process.
-fn font_ready() -> Result<(), ExportError> {
+pub(super) fn font_ready() -> Result<(), ExportError> {
     static READY: OnceLock<bool> = OnceLock::new();
     let ok = *READY.get_or_init(|| {
         plotters::style::register_font(FONT, FontStyle::Normal, epaint_default_fonts::UBUNTU_LIGHT)
@@ -205,7 +243,7 @@ fn finite_runs(points: &[(f64, f64)]) -> Vec<Vec<(f64, f64)>> {
 }
 
 /// Greedy word wrap of `text` into lines no wider than `max_px` at `size` px.
-fn wrap<DB: DrawingBackend>(
+pub(super) fn wrap<DB: DrawingBackend>(
     area: &DrawingArea<DB, Shift>,
     text: &str,
     size: f64,
@@ -339,7 +377,7 @@ fn draw<DB: DrawingBackend>(
 
 /// Draws the plot as a PNG image of `width_px` × `height_px` and returns the file's bytes.
 pub fn render_png(spec: &PlotSpec, width_px: u32, height_px: u32) -> Result<Vec<u8>, ExportError> {
-    check_size(width_px, height_px)?;
+    check_size(ImageFormat::Png, width_px, height_px)?;
     font_ready()?;
     spec.ranges()?;
     let mut buf = vec![255_u8; width_px as usize * height_px as usize * 3];
@@ -357,7 +395,7 @@ pub fn render_png(spec: &PlotSpec, width_px: u32, height_px: u32) -> Result<Vec<
 
 /// Draws the plot as an SVG document of `width_px` × `height_px`.
 pub fn render_svg(spec: &PlotSpec, width_px: u32, height_px: u32) -> Result<String, ExportError> {
-    check_size(width_px, height_px)?;
+    check_size(ImageFormat::Svg, width_px, height_px)?;
     font_ready()?;
     spec.ranges()?;
     let mut svg = String::new();

@@ -168,7 +168,9 @@ impl ExportState {
         };
         let outcome = export_bytes(self.kind, self.width_px, self.height_px, inputs, &path)
             .and_then(|bytes| {
-                export::write_atomic(&path, &bytes)
+                let inputs: Vec<&Path> = inputs.design_path.into_iter().collect();
+                export::refuse_input(&path, &inputs)
+                    .and_then(|()| export::write_atomic(&path, &bytes))
                     .map_err(|e| format!("cannot write {}: {e}", path.display()))
             })
             .map(|()| path);

@@ -16,6 +16,17 @@ use serde::{Deserialize, Serialize};
 pub use library::{builtin, find_builtin};
 pub use model::{EV_UM, Model, Oscillator};
 
+/// Smallest refractive index n the program computes with. Metals reach n ≈ 0.03 in the
+/// visible (silver, sodium); below 0.001 a model is far outside its data.
+pub const MIN_N: f64 = 1e-3;
+/// Largest refractive index n the program computes with (dielectrics stay below about 10;
+/// metals in the far infrared reach several hundred: aluminium n ≈ 300 at 124 µm by the
+/// Lorentz–Drude model of the built-in library).
+pub const MAX_N: f64 = 1000.0;
+/// Largest extinction coefficient k the program computes with (metals in the far infrared
+/// reach several hundred).
+pub const MAX_K: f64 = 10_000.0;
+
 /// What can go wrong with a material.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 #[non_exhaustive]
@@ -30,8 +41,8 @@ pub enum MaterialError {
     },
     /// The model gives no physical index at this wavelength (e.g. inside a pole of a formula).
     #[error(
-        "material {name:?} gives no usable index at {wavelength_nm} nm (n = {n}, k = {k}); \
-         its data cover {min_nm}–{max_nm} nm"
+        "material {name:?} gives no usable index at {wavelength_nm} nm (n = {n}, k = {k}; \
+         usable: {MIN_N} ≤ n ≤ {MAX_N}, 0 ≤ k ≤ {MAX_K}); its data cover {min_nm}–{max_nm} nm"
     )]
     NoIndex {
         /// Material name.
@@ -127,10 +138,11 @@ impl Material {
 
     /// N = n + i k at a wavelength (nm). Outside the valid range the model is extrapolated
     /// (formulas evaluated, tables held at their end values); callers report that with a
-    /// [`RangeWarning`]. An index that is not a finite number with n > 0, k >= 0 is an error.
+    /// [`RangeWarning`]. An index outside [`MIN_N`] ≤ n ≤ [`MAX_N`], 0 ≤ k ≤ [`MAX_K`] (or not a
+    /// number) is an error.
     pub fn index_at(&self, wavelength_nm: f64) -> Result<Complex64, MaterialError> {
         let n = self.model.index_at(wavelength_nm);
-        if n.re.is_finite() && n.im.is_finite() && n.re > 0.0 && n.im >= 0.0 {
+        if (MIN_N..=MAX_N).contains(&n.re) && (0.0..=MAX_K).contains(&n.im) {
             Ok(n)
         } else {
             let (min_nm, max_nm) = self.valid_range_nm();

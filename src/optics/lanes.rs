@@ -1,12 +1,13 @@
 //! The characteristic-matrix loop for four independent points at once (four wavelengths, or
 //! four angles), in SIMD lanes. Same mathematics as [`super::coherent`]; each layer's matrix is
-//! always scaled by e^(−Im δ) (so nothing overflows and no division is needed), and the scale
-//! is carried as a logarithm to the end.
+//! always scaled by e^(−Im δ) (so no division is needed), every few layers the running
+//! [B; C] of each lane is brought back near 1 by a power of two (so long stacks in a stop band
+//! cannot overflow), and both scales are carried as logarithms to the end.
 
 use num_complex::Complex64;
 use wide::f64x4;
 
-use super::tmm::{Coherent, Tilted, finish};
+use super::tmm::{BIG, Coherent, RENORM_EVERY, SMALL, Tilted, finish, renorm_factor};
 
 /// Four complex numbers, real and imaginary parts in separate lanes.
 #[derive(Clone, Copy, Debug)]
@@ -42,6 +43,21 @@ impl Cx4 {
             im: self.im - o.im,
         }
     }
+}
+
+/// Rescales each lane's [B; C] by a power of two when it has left [`SMALL`, `BIG`] (rare: a
+/// quick test of all lanes first); the natural logarithm taken out is added to `log_norm`.
+fn renorm4(b: &mut Cx4, c: &mut Cx4, log_norm: &mut f64x4) {
+    let m = b.re.abs().max(b.im.abs()).max(c.re.abs()).max(c.im.abs());
+    if !(m.simd_gt(f64x4::splat(BIG)) | m.simd_lt(f64x4::splat(SMALL))).any() {
+        return;
+    }
+    let f = m.to_array().map(|m| renorm_factor(m).unwrap_or(1.0));
+    let fv = f64x4::from(f);
+    for x in [&mut b.re, &mut b.im, &mut c.re, &mut c.im] {
+        *x *= fv;
+    }
+    *log_norm -= f64x4::from(f.map(f64::ln));
 }
 
 /// A medium at four points: q and the admittances per lane.
@@ -86,7 +102,15 @@ pub(crate) fn coherent4<'a>(
     let (mut bs, mut cs) = (one, Cx4::gather(substrate.map(|t| t.eta_s)));
     let (mut bp, mut cp) = (one, Cx4::gather(substrate.map(|t| t.eta_p)));
     let mut log_scale = f64x4::ZERO;
+    let (mut norm_s, mut norm_p) = (f64x4::ZERO, f64x4::ZERO);
+    let mut since_renorm = 0;
     for (m, d_nm) in layers {
+        since_renorm += 1;
+        if since_renorm > RENORM_EVERY {
+            since_renorm = 1;
+            renorm4(&mut bs, &mut cs, &mut norm_s);
+            renorm4(&mut bp, &mut cp, &mut norm_p);
+        }
         let kd = k0 * f64x4::splat(d_nm);
         let a = m.q.re * kd;
         let (sin_a, cos_a) = a.sin_cos();
@@ -129,11 +153,15 @@ pub(crate) fn coherent4<'a>(
         let (xp, yp) = (i_sin_d.mul(m.inv_eta_p), i_sin_d.mul(m.eta_p));
         (bp, cp) = (cos_d.mul(bp).sub(xp.mul(cp)), cos_d.mul(cp).sub(yp.mul(bp)));
     }
-    let log_scale = log_scale.to_array();
+    renorm4(&mut bs, &mut cs, &mut norm_s);
+    renorm4(&mut bp, &mut cp, &mut norm_p);
+    let (log_s, log_p) = (
+        (log_scale + norm_s).to_array(),
+        (log_scale + norm_p).to_array(),
+    );
     std::array::from_fn(|i| {
         let (inc, sub) = (incident[i], substrate[i]);
         let cos_ratio = (inc.q / inc.n) / (sub.q / sub.n);
-        let scale2 = (-2.0 * log_scale[i]).exp();
         Coherent {
             s: finish(
                 inc.eta_s,
@@ -141,7 +169,7 @@ pub(crate) fn coherent4<'a>(
                 cs.lane(i),
                 sub.eta_s,
                 Complex64::ONE,
-                scale2,
+                log_s[i],
             ),
             p: finish(
                 inc.eta_p,
@@ -149,7 +177,7 @@ pub(crate) fn coherent4<'a>(
                 cp.lane(i),
                 sub.eta_p,
                 cos_ratio,
-                scale2,
+                log_p[i],
             ),
         }
     })

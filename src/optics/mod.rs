@@ -36,10 +36,13 @@
 //! * **Back face.** Its coating is listed like the front one, from the substrate outward
 //!   (layer 1 touches the substrate). Light from the back meets the back face first.
 
+pub mod field;
+pub mod gradient;
 mod lanes;
 pub mod thick;
 mod tmm;
 
+pub use gradient::{Gradient, GradientScratch, solve_gradient};
 pub use thick::{Face, combine};
 pub use tmm::{Amplitudes, Coherent, Tilted, coherent};
 

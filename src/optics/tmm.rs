@@ -10,6 +10,35 @@ const ONE: Complex64 = Complex64::new(1.0, 0.0);
 /// e^(−b) so that thick metal layers cannot overflow; the scale is tracked in a logarithm.
 const RESCALE_NEPERS: f64 = 30.0;
 
+/// Every this many layers (in the four-lane loop; the one-point loop checks every layer) the
+/// running [B; C] is brought back near 1 when it has left
+/// [`SMALL`, `BIG`]: a long stack in its stop band (or many metal layers) multiplies it by a
+/// factor per layer, and 1 000 quarter-wave pairs would overflow. R needs only C/B; the scale
+/// goes into a logarithm that T and t use.
+pub(crate) const RENORM_EVERY: usize = 8;
+/// Upper bound of the running [B; C] before rescaling (2^200 ≈ 1.6e60): far enough from
+/// overflow that [`RENORM_EVERY`] layers of any accepted index and thickness fit.
+pub(crate) const BIG: f64 = 1.606_938_044_258_990_3e60;
+/// Lower bound of the running [B; C] before rescaling (2^−200).
+pub(crate) const SMALL: f64 = 6.223_015_277_861_142e-61;
+
+/// The power of two that brings `m` (the largest component of [B; C]) back near 1, or `None`
+/// when `m` is inside [`SMALL`, `BIG`] (or not a usable number).
+pub(crate) fn renorm_factor(m: f64) -> Option<f64> {
+    (m.is_finite() && (m > BIG || (m < SMALL && m > 0.0))).then(|| (-m.log2().floor()).exp2())
+}
+
+/// Rescales [B; C] by an exact power of two when it has left [`SMALL`, `BIG`]; the natural
+/// logarithm of the factor taken out is added to `log_norm`.
+fn renorm(b: &mut Complex64, c: &mut Complex64, log_norm: &mut f64) {
+    let m = b.re.abs().max(b.im.abs()).max(c.re.abs()).max(c.im.abs());
+    if let Some(f) = renorm_factor(m) {
+        *b *= f;
+        *c *= f;
+        *log_norm -= f.ln();
+    }
+}
+
 /// A medium at one wavelength and one Snell invariant: q = N cos θ and the tilted admittances.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Tilted {
@@ -127,6 +156,7 @@ pub fn coherent<'a>(
     let (mut bs, mut cs) = (ONE, substrate.eta_s);
     let (mut bp, mut cp) = (ONE, substrate.eta_p);
     let mut log_scale = 0.0;
+    let (mut norm_s, mut norm_p) = (0.0, 0.0);
     for (m, d_nm) in layers {
         let delta = m.q * (k0 * d_nm);
         let (sin_a, cos_a) = delta.re.sin_cos();
@@ -154,16 +184,35 @@ pub fn coherent<'a>(
         (bs, cs) = (cos_d * bs - xs * cs, cos_d * cs - ys * bs);
         let (xp, yp) = (i_sin_d * m.inv_eta_p, i_sin_d * m.eta_p);
         (bp, cp) = (cos_d * bp - xp * cp, cos_d * cp - yp * bp);
+        // One point at a time, the test is cheap next to the complex products: every layer
+        // (a layer below RESCALE_NEPERS may still grow [B; C] by up to e^30).
+        renorm(&mut bs, &mut cs, &mut norm_s);
+        renorm(&mut bp, &mut cp, &mut norm_p);
     }
     let cos_ratio = (incident.q / incident.n) / (substrate.q / substrate.n);
-    let scale2 = (-2.0 * log_scale).exp();
-    let s = finish(incident.eta_s, bs, cs, substrate.eta_s, ONE, scale2);
-    let p = finish(incident.eta_p, bp, cp, substrate.eta_p, cos_ratio, scale2);
+    let s = finish(
+        incident.eta_s,
+        bs,
+        cs,
+        substrate.eta_s,
+        ONE,
+        log_scale + norm_s,
+    );
+    let p = finish(
+        incident.eta_p,
+        bp,
+        cp,
+        substrate.eta_p,
+        cos_ratio,
+        log_scale + norm_p,
+    );
     Coherent { s, p }
 }
 
-/// R, T, A and amplitudes from [B; C]; `eta0` is the polarisation's η₀, `t_factor` turns
-/// the tangential-field ratio into the electric-field ratio, `scale2` = e^(−2·log scale).
+/// R, T, A and amplitudes from [B; C]; `eta0` is the polarisation's η₀, `t_factor` turns the
+/// tangential-field ratio into the electric-field ratio, and the true [B; C] is the given one
+/// times e^`log_scale`. R needs only the ratio; T = 4 η₀ Re(η_sub) e^(−2·log_scale) / |η₀B +
+/// C|² is formed in logarithms so that neither factor overflows or underflows on its own.
 ///
 /// An absorbing incident medium (only ever the inside of a thick substrate) keeps its complex
 /// η₀: r = (η₀B − C)/(η₀B + C), T = |t_tan|² Re(η_sub)/Re(η₀) with t_tan = 2η₀/(η₀B + C) —
@@ -175,19 +224,24 @@ pub(crate) fn finish(
     c: Complex64,
     eta_sub: Complex64,
     t_factor: Complex64,
-    scale2: f64,
+    log_scale: f64,
 ) -> Amplitudes {
     if eta0.im != 0.0 {
-        return finish_absorbing(eta0, b, c, eta_sub, t_factor, scale2);
+        return finish_absorbing(eta0, b, c, eta_sub, t_factor, log_scale);
     }
     let eta0 = eta0.re;
     let den = eta0 * b + c;
     let den2 = den.norm_sqr();
     let r = (eta0 * b - c) / den;
     let four = 4.0 * eta0 / den2;
-    let transmittance = four * eta_sub.re * scale2;
-    let absorptance = four * ((b * c.conj()).re - eta_sub.re * scale2);
-    let scale = scale2.sqrt();
+    let (transmittance, absorptance, scale) = if log_scale == 0.0 {
+        let t = four * eta_sub.re;
+        (t, four * ((b * c.conj()).re - eta_sub.re), 1.0)
+    } else {
+        let x = 4.0 * eta0 * eta_sub.re;
+        let t = x.signum() * (x.abs().ln() - 2.0 * log_scale - den2.ln()).exp();
+        (t, four * (b * c.conj()).re - t, (-log_scale).exp())
+    };
     Amplitudes {
         r,
         t: 2.0 * eta0 / den * t_factor * scale,
@@ -204,16 +258,24 @@ fn finish_absorbing(
     c: Complex64,
     eta_sub: Complex64,
     t_factor: Complex64,
-    scale2: f64,
+    log_scale: f64,
 ) -> Amplitudes {
     let den = eta0 * b + c;
     let r = (eta0 * b - c) / den;
-    let four = 4.0 * eta0.norm_sqr() / (eta0.re * den.norm_sqr());
-    let transmittance = four * eta_sub.re * scale2;
-    let absorptance = four * ((b * c.conj()).re - eta_sub.re * scale2);
+    let den2 = eta0.re * den.norm_sqr();
+    let four = 4.0 * eta0.norm_sqr() / den2;
+    let (transmittance, scale) = if log_scale == 0.0 {
+        (four * eta_sub.re, 1.0)
+    } else {
+        let x = 4.0 * eta0.norm_sqr() * eta_sub.re;
+        let t =
+            x.signum() * (x.abs().ln() - 2.0 * log_scale - den2.abs().ln()).exp() * den2.signum();
+        (t, (-log_scale).exp())
+    };
+    let absorptance = four * (b * c.conj()).re - transmittance;
     Amplitudes {
         r,
-        t: 2.0 * eta0 / den * t_factor * scale2.sqrt(),
+        t: 2.0 * eta0 / den * t_factor * scale,
         reflectance: r.norm_sqr(),
         transmittance,
         absorptance,

@@ -3,8 +3,8 @@
 //!
 //! The panel never changes the design itself: [`materials_ui`] returns a [`BrowserAction`]
 //! for the caller to apply (and, e.g., to refuse removing a material that layers still use).
-//! Its parts: the list and details here, the n,k plot (`nk_plot`), the form's model,
-//! testable without egui (`form`), and the form's widgets (`form_ui`).
+//! Its parts: the list and details here, the n,k plot (`nk_plot.rs`), the form's model,
+//! testable without egui (`form.rs`), and the form's widgets (`form_ui.rs`).
 
 mod form;
 mod form_ui;
