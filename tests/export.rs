@@ -381,10 +381,23 @@ fn measured_files_in_every_accepted_shape() {
     let m = read("wavelength (nm), R (%)\n500, 0.4\n600, 0.3\n");
     assert_eq!(m.scale_used, ValueScale::Percent, "header says %");
     close(&m.value, &[0.004, 0.003]);
-    // The caller can force the units.
-    let m = parse_measured_csv("400,1\n500,2\n", WavelengthUnit::Nm, ValueScale::Fraction)
+    // The caller can force the units: small wavelengths read as nm, small values as percent
+    // (left to themselves they would be µm and fractions).
+    let m = parse_measured_csv("20,1\n30,0.5\n", WavelengthUnit::Nm, ValueScale::Percent)
         .expect("reads");
-    close(&m.value, &[1.0, 2.0]);
+    close(&m.wavelength_nm, &[20.0, 30.0]);
+    close(&m.value, &[0.01, 0.005]);
+    let m = read("20,1\n30,0.5\n");
+    close(&m.wavelength_nm, &[20_000.0, 30_000.0]);
+    close(&m.value, &[1.0, 0.5]);
+    // Forcing fractions on values above 1.02 is refused: no R or T is above 100 %.
+    assert!(
+        matches!(
+            parse_measured_csv("400,1\n500,2\n", WavelengthUnit::Nm, ValueScale::Fraction),
+            Err(MeasuredError::OutOfRange { line: 2, .. })
+        ),
+        "200 % refused"
+    );
 }
 
 /// (file text, is it the right error, a fragment the message must hold)

@@ -14,8 +14,8 @@
 //! ```
 
 use super::Spectrum;
-use super::measured::interpolate;
 use crate::design::{Pol, Quantity};
+use crate::table::interp::within;
 
 /// The curve of `quantity` for `pol` from a spectrum (fractions).
 ///
@@ -200,7 +200,7 @@ pub fn difference(a: &Spectrum, b: &Spectrum) -> Difference {
     let mut d = Difference::default();
     let (ca, cb) = (&a.curves, &b.curves);
     for (i, &wl) in a.wavelength_nm.iter().enumerate() {
-        let at = |xs: &[f64], ys: &[f64], own: &[f64]| Some(own.get(i)? - interpolate(xs, ys, wl)?);
+        let at = |xs: &[f64], ys: &[f64], own: &[f64]| Some(own.get(i)? - within(xs, ys, wl)?);
         let bw = &b.wavelength_nm;
         if let (Some(r), Some(t), Some(ab)) = (
             at(bw, &cb.r, &ca.r),

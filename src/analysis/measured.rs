@@ -6,7 +6,9 @@
 //! numbers are a header. Semicolon- or tab-separated files may use a decimal comma. The
 //! wavelength unit (nm or µm) and the value scale (percent or fraction) are read from the
 //! header when it names them, else detected from the numbers; every such decision is reported
-//! in [`MeasuredCurve::notes`].
+//! in [`MeasuredCurve::notes`]. Infinite values, and values below 0 % or above 100 % by more
+//! than [`NOISE_ALLOWANCE`], are refused with their line. The text is read by the program's
+//! one table reader, [`crate::table::read_text_table`].
 //!
 //! ```
 //! use stackwise::analysis::measured::{parse_measured_csv, ValueScale};
@@ -18,15 +20,22 @@
 //! # Ok::<(), stackwise::analysis::measured::MeasuredError>(())
 //! ```
 
-use std::cmp::Ordering;
 use std::fmt;
 
 use super::Spectrum;
 use crate::design::{Pol, Quantity};
-use crate::material::import::{GUESS_UM_BELOW, Sep, WavelengthUnit, text_table, unit_in_header};
+use crate::table::interp::within;
+use crate::table::{
+    Layout, Row, TableError, TextTable, WavelengthUnit, choose_unit, read_text_table,
+};
 
 /// Values above this (in any row) mean the column is in percent when the scale is detected.
 pub const PERCENT_ABOVE: f64 = 1.5;
+
+/// How far (as a fraction, 0.02 = 2 percentage points) a measured R or T may lie below 0 or
+/// above 1 before it is refused as impossible rather than read as noise. Common practice for
+/// spectrophotometer baselines, no single published source.
+pub const NOISE_ALLOWANCE: f64 = 0.02;
 
 /// How the value column is written.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash)]
@@ -56,7 +65,7 @@ impl fmt::Display for ValueScale {
 pub struct MeasuredCurve {
     /// Wavelengths (nm), strictly rising.
     pub wavelength_nm: Vec<f64>,
-    /// The measured values as fractions (0..1 for a physical R or T; noise may go beyond).
+    /// The measured values as fractions: 0..1, or beyond by at most [`NOISE_ALLOWANCE`].
     pub value: Vec<f64>,
     /// The wavelength unit the file was read in (never `Auto`).
     pub unit_used: WavelengthUnit,
@@ -133,46 +142,45 @@ pub enum MeasuredError {
         /// The offending wavelength as written.
         text: String,
     },
+    /// An infinite value (or NaN).
+    #[error(
+        "line {line}: {column} is {text:?}; every value must be a finite number — remove the \
+         row or replace the value by the measured reading"
+    )]
+    NotFinite {
+        /// Line number (1-based).
+        line: usize,
+        /// "wavelength" or "value".
+        column: &'static str,
+        /// The cell as written.
+        text: String,
+    },
+    /// A value below 0 % or above 100 % by more than [`NOISE_ALLOWANCE`].
+    #[error(
+        "line {line}: value {text} is {percent} %, {side} by more than the {allow} percentage \
+         points allowed for measurement noise; an R or T lies between 0 and 100 % — check the \
+         value, and the scale (read as {scale})"
+    )]
+    OutOfRange {
+        /// Line number (1-based).
+        line: usize,
+        /// The cell as written.
+        text: String,
+        /// The value in percent as read with `scale`.
+        percent: f64,
+        /// "below 0 %" or "above 100 %".
+        side: &'static str,
+        /// The allowance in percentage points.
+        allow: f64,
+        /// The value scale the file was read in.
+        scale: ValueScale,
+    },
     /// Fewer than two rows.
     #[error("only one row of data (line {line}); a measured curve needs at least 2 rows")]
     TooFewRows {
         /// The line of the single row.
         line: usize,
     },
-}
-
-/// One data row as read.
-struct Row<'a> {
-    line: usize,
-    wl: f64,
-    value: f64,
-    wl_text: &'a str,
-}
-
-fn cell(
-    text: &str,
-    line: usize,
-    column: &'static str,
-    decimal_comma: bool,
-) -> Result<(f64, bool), MeasuredError> {
-    let bad = || MeasuredError::NotANumber {
-        line,
-        column,
-        text: text.to_owned(),
-    };
-    let (v, used_comma) = match text.parse::<f64>() {
-        Ok(v) => (v, false),
-        Err(_) if decimal_comma && text.matches(',').count() == 1 && !text.contains('.') => (
-            text.replace(',', ".").parse::<f64>().map_err(|_| bad())?,
-            true,
-        ),
-        Err(_) => return Err(bad()),
-    };
-    if v.is_finite() {
-        Ok((v, used_comma))
-    } else {
-        Err(bad())
-    }
 }
 
 /// The scale a header names, if it names exactly one.
@@ -187,106 +195,90 @@ fn scale_in_header(header: &str) -> Option<ValueScale> {
     }
 }
 
-/// What one pass over the lines found.
-struct Scan<'a> {
-    rows: Vec<Row<'a>>,
-    sep: Sep,
-    header: String,
-    header_lines: usize,
-    used_comma: bool,
+const LAYOUT: Layout = Layout {
+    columns: &["wavelength", "value"],
+    min_columns: 2,
+};
+
+impl From<TableError> for MeasuredError {
+    fn from(e: TableError) -> Self {
+        match e {
+            TableError::NoRows => MeasuredError::NoRows,
+            TableError::SingleColumn { line, text } => MeasuredError::SingleColumn { line, text },
+            TableError::TooManyColumns { line, count, .. }
+            | TableError::TooFewColumns { line, count, .. }
+            | TableError::ColumnCountChanged {
+                line, found: count, ..
+            } => MeasuredError::TooManyColumns { line, count },
+            TableError::EmptyCell { line, column } => MeasuredError::NotANumber {
+                line,
+                column,
+                text: String::new(),
+            },
+            TableError::NotANumber { line, column, text } => {
+                MeasuredError::NotANumber { line, column, text }
+            }
+            TableError::NotFinite { line, column, text } => {
+                // NaN is "not a number" in words as well; infinities get their own message.
+                if text.to_lowercase().contains("nan") {
+                    MeasuredError::NotANumber { line, column, text }
+                } else {
+                    MeasuredError::NotFinite { line, column, text }
+                }
+            }
+            TableError::Duplicate {
+                first_line: prev_line,
+                line,
+                text,
+            } => MeasuredError::NotMonotonic {
+                prev_line,
+                prev_text: text.clone(),
+                line,
+                text,
+            },
+            TableError::NotMonotonic {
+                prev_line,
+                prev_text,
+                line,
+                text,
+            } => MeasuredError::NotMonotonic {
+                prev_line,
+                prev_text,
+                line,
+                text,
+            },
+            TableError::TooFewRows { line } => MeasuredError::TooFewRows { line },
+        }
+    }
 }
 
-/// One pass over the lines: header, separator, rows.
-fn scan(text: &str) -> Result<Scan<'_>, MeasuredError> {
-    let table = text_table(text);
-    let (header, header_lines, sep) = (table.header, table.header_lines, table.sep);
-    let mut used_comma = false;
-    let mut rows: Vec<Row<'_>> = Vec::with_capacity(table.data.len());
-    for &(line, content) in &table.data {
-        let s = sep.unwrap_or(Sep::Comma);
-        let cells = s.split(content);
-        match cells.len() {
-            0 | 1 => {
-                return Err(MeasuredError::SingleColumn {
-                    line,
-                    text: content.to_owned(),
-                });
-            }
-            2 => {}
-            count => return Err(MeasuredError::TooManyColumns { line, count }),
-        }
-        let decimal_comma = s != Sep::Comma;
-        let (wl, c1) = cell(cells[0], line, "wavelength", decimal_comma)?;
-        let (value, c2) = cell(cells[1], line, "value", decimal_comma)?;
-        used_comma |= c1 || c2;
-        if wl <= 0.0 {
-            return Err(MeasuredError::BadWavelength {
-                line,
-                text: cells[0].to_owned(),
-            });
-        }
-        rows.push(Row {
-            line,
-            wl,
-            value,
-            wl_text: cells[0],
+/// A positive wavelength on every row.
+fn check_row(row: &Row<'_>) -> Result<(), MeasuredError> {
+    if row.values[0] <= 0.0 {
+        return Err(MeasuredError::BadWavelength {
+            line: row.line,
+            text: row.cells[0].to_owned(),
         });
     }
-    let Some(sep) = sep else {
-        return Err(MeasuredError::NoRows);
-    };
-    Ok(Scan {
-        rows,
-        sep,
-        header,
-        header_lines,
-        used_comma,
-    })
+    Ok(())
 }
 
 /// Reads a measured curve (wavelength, value) from CSV-like text.
 ///
 /// `unit` and `scale` fix the wavelength unit and value scale, or are `Auto` to read them from
-/// the header, else detect them: all wavelengths below [`GUESS_UM_BELOW`] → µm; any value
+/// the header, else detect them: all wavelengths below [`crate::table::GUESS_UM_BELOW`] → µm; any value
 /// above [`PERCENT_ABOVE`] → percent. Rows in falling wavelength order are reversed. The result
-/// is in nm and fractions.
+/// is in nm and fractions. A value below 0 or above 1 (100 %) by more than
+/// [`NOISE_ALLOWANCE`] is refused with its line: no reflectance or transmittance can be there.
 pub fn parse_measured_csv(
     text: &str,
     unit: WavelengthUnit,
     scale: ValueScale,
 ) -> Result<MeasuredCurve, MeasuredError> {
-    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
-    let Scan {
-        rows,
-        sep,
-        header,
-        header_lines,
-        used_comma,
-    } = scan(text)?;
-    match rows.as_slice() {
-        [] => return Err(MeasuredError::NoRows),
-        [only] => return Err(MeasuredError::TooFewRows { line: only.line }),
-        _ => {}
-    }
-    let descending = check_order(&rows)?;
-
-    let mut notes = Vec::new();
-    if header_lines > 0 {
-        notes.push(format!(
-            "skipped {header_lines} header line{}",
-            if header_lines == 1 { "" } else { "s" }
-        ));
-    }
-    notes.push(format!(
-        "{} rows, columns separated by {}",
-        rows.len(),
-        sep.words()
-    ));
-    if used_comma {
-        notes.push("decimal commas read as decimal points (e.g. 45,2 = 45.2)".into());
-    }
-    let unit_used = pick_unit(unit, &header, &rows, &mut notes);
-    let scale_used = pick_scale(scale, &header, &rows, &mut notes);
+    let table = read_text_table(text, &LAYOUT, check_row)?;
+    let mut notes = table.notes();
+    let (unit_used, _) = choose_unit(unit, &table.header, table.keys(), &mut notes);
+    let scale_used = pick_scale(scale, &table, &mut notes);
     let wl_scale = if unit_used == WavelengthUnit::Um {
         1000.0
     } else {
@@ -297,15 +289,29 @@ pub fn parse_measured_csv(
     } else {
         1.0
     };
-    let (mut wavelength_nm, mut value): (Vec<f64>, Vec<f64>) = rows
-        .iter()
-        .map(|r| (r.wl * wl_scale, r.value * v_scale))
-        .unzip();
-    if descending {
-        wavelength_nm.reverse();
-        value.reverse();
-        notes.push("rows were in falling wavelength order; sorted rising".into());
+    let mut wavelength_nm = Vec::with_capacity(table.rows.len());
+    let mut value = Vec::with_capacity(table.rows.len());
+    for r in &table.rows {
+        let v = r.values[1] * v_scale;
+        let side = if v < -NOISE_ALLOWANCE {
+            "below 0 %"
+        } else if v > 1.0 + NOISE_ALLOWANCE {
+            "above 100 %"
+        } else {
+            wavelength_nm.push(r.values[0] * wl_scale);
+            value.push(v);
+            continue;
+        };
+        return Err(MeasuredError::OutOfRange {
+            line: r.line,
+            text: r.cells[1].to_owned(),
+            percent: 100.0 * v,
+            side,
+            allow: 100.0 * NOISE_ALLOWANCE,
+            scale: scale_used,
+        });
     }
+    notes.extend(table.falling_note());
     Ok(MeasuredCurve {
         wavelength_nm,
         value,
@@ -315,52 +321,26 @@ pub fn parse_measured_csv(
     })
 }
 
-fn pick_unit(
-    unit: WavelengthUnit,
-    header: &str,
-    rows: &[Row<'_>],
-    notes: &mut Vec<String>,
-) -> WavelengthUnit {
-    if unit != WavelengthUnit::Auto {
-        notes.push(format!("wavelengths in {unit}, as chosen"));
-        return unit;
-    }
-    if let Some(u) = unit_in_header(header) {
-        notes.push(format!("wavelengths in {u}, as the header says"));
-        return u;
-    }
-    if rows.iter().all(|r| r.wl < GUESS_UM_BELOW) {
-        notes.push(format!(
-            "wavelengths read as µm because all are below {GUESS_UM_BELOW}; choose nm if that is wrong"
-        ));
-        WavelengthUnit::Um
-    } else {
-        notes.push(format!(
-            "wavelengths read as nm because some are {GUESS_UM_BELOW} or more; choose µm if that is wrong"
-        ));
-        WavelengthUnit::Nm
-    }
-}
-
-fn pick_scale(
-    scale: ValueScale,
-    header: &str,
-    rows: &[Row<'_>],
-    notes: &mut Vec<String>,
-) -> ValueScale {
+fn pick_scale(scale: ValueScale, table: &TextTable<'_>, notes: &mut Vec<String>) -> ValueScale {
     if scale != ValueScale::Auto {
         notes.push(format!("values in {scale}, as chosen"));
         return scale;
     }
-    if let Some(s) = scale_in_header(header) {
+    if let Some(s) = scale_in_header(&table.header) {
         notes.push(format!("values in {s}, as the header says"));
         return s;
     }
-    if let Some(r) = rows.iter().find(|r| r.value > PERCENT_ABOVE) {
+    // Rows are in rising wavelength order here; report the first such line of the file.
+    let above = table
+        .rows
+        .iter()
+        .filter(|r| r.values[1] > PERCENT_ABOVE)
+        .min_by_key(|r| r.line);
+    if let Some(r) = above {
         notes.push(format!(
             "values read as percent because line {} has {} (above {PERCENT_ABOVE}); \
              choose fraction if that is wrong",
-            r.line, r.value
+            r.line, r.values[1]
         ));
         ValueScale::Percent
     } else {
@@ -370,49 +350,6 @@ fn pick_scale(
         ));
         ValueScale::Fraction
     }
-}
-
-/// Checks that wavelengths strictly rise or strictly fall; returns true if they fall.
-fn check_order(rows: &[Row<'_>]) -> Result<bool, MeasuredError> {
-    let mut direction: Option<Ordering> = None;
-    for pair in rows.windows(2) {
-        let (a, b) = (&pair[0], &pair[1]);
-        let step = b.wl.total_cmp(&a.wl);
-        if step == Ordering::Equal || *direction.get_or_insert(step) != step {
-            return Err(MeasuredError::NotMonotonic {
-                prev_line: a.line,
-                prev_text: a.wl_text.to_owned(),
-                line: b.line,
-                text: b.wl_text.to_owned(),
-            });
-        }
-    }
-    Ok(direction == Some(Ordering::Less))
-}
-
-/// The value of the curve `ys` over rising `xs` at `x` by straight-line interpolation, or
-/// `None` outside `xs[0]..=xs[last]`. A point of `xs` gives its own `ys` value exactly.
-///
-/// ```
-/// use stackwise::analysis::measured::interpolate;
-/// assert_eq!(interpolate(&[1.0, 3.0], &[10.0, 30.0], 2.0), Some(20.0));
-/// assert_eq!(interpolate(&[1.0, 3.0], &[10.0, 30.0], 3.5), None);
-/// ```
-#[must_use]
-pub fn interpolate(xs: &[f64], ys: &[f64], x: f64) -> Option<f64> {
-    let n = xs.len().min(ys.len());
-    let (xs, ys) = (&xs[..n], &ys[..n]);
-    let (&first, &last) = (xs.first()?, xs.last()?);
-    if !(first..=last).contains(&x) {
-        return None;
-    }
-    let i = xs.partition_point(|&v| v < x);
-    if xs.get(i) == Some(&x) {
-        return ys.get(i).copied();
-    }
-    // 0 < i < n here: x lies strictly between xs[i-1] and xs[i].
-    let (x0, x1, y0, y1) = (xs[i - 1], xs[i], ys[i - 1], ys[i]);
-    Some(y0 + (y1 - y0) * (x - x0) / (x1 - x0))
 }
 
 /// Root-mean-square difference (fractions) between the measured values and the computed
@@ -429,7 +366,107 @@ pub fn rms_difference(
         .wavelength_nm
         .iter()
         .zip(&measured.value)
-        .filter_map(|(&wl, &m)| interpolate(&computed.wavelength_nm, ys, wl).map(|c| c - m))
+        .filter_map(|(&wl, &m)| within(&computed.wavelength_nm, ys, wl).map(|c| c - m))
         .fold((0.0, 0_usize), |(s, n), d| (s + d * d, n + 1));
     (count > 0).then(|| ((sum / count as f64).sqrt(), count))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn read(text: &str) -> Result<MeasuredCurve, MeasuredError> {
+        parse_measured_csv(text, WavelengthUnit::Auto, ValueScale::Auto)
+    }
+
+    #[test]
+    fn infinite_values_are_refused_with_the_line() {
+        let e = read("400,0.1\n500,inf\n600,0.2\n").unwrap_err();
+        assert!(
+            matches!(
+                &e,
+                MeasuredError::NotFinite {
+                    line: 2,
+                    column: "value",
+                    ..
+                }
+            ),
+            "{e:?}"
+        );
+        assert!(
+            e.to_string().contains("line 2") && e.to_string().contains("finite"),
+            "{e}"
+        );
+        let e = read("400,0.1\n-1e999,0.2\n").unwrap_err();
+        assert!(
+            matches!(
+                &e,
+                MeasuredError::NotFinite {
+                    line: 2,
+                    column: "wavelength",
+                    ..
+                }
+            ),
+            "an overflowing number is infinite: {e:?}"
+        );
+    }
+
+    #[test]
+    fn values_below_zero_beyond_the_noise_are_refused() {
+        // −2.5 % is 0.5 points past the 2-point allowance.
+        let e = read("R (%)\n400,1.0\n500,-2.5\n").unwrap_err();
+        assert!(
+            matches!(
+                &e,
+                MeasuredError::OutOfRange {
+                    line: 3,
+                    side: "below 0 %",
+                    ..
+                }
+            ),
+            "{e:?}"
+        );
+        let msg = e.to_string();
+        assert!(msg.contains("line 3") && msg.contains("-2.5 %"), "{msg}");
+        assert!(
+            msg.contains("2 percentage points"),
+            "names the allowance: {msg}"
+        );
+    }
+
+    #[test]
+    fn values_above_one_hundred_beyond_the_noise_are_refused() {
+        let e = read("T (%)\n400,99\n500,103\n600,98\n").unwrap_err();
+        assert!(
+            matches!(
+                &e,
+                MeasuredError::OutOfRange {
+                    line: 3,
+                    side: "above 100 %",
+                    ..
+                }
+            ),
+            "{e:?}"
+        );
+        // A fraction of 1.2 is 120 %: refused too, with the scale named.
+        let e = parse_measured_csv(
+            "400,0.9\n500,1.2\n",
+            WavelengthUnit::Nm,
+            ValueScale::Fraction,
+        )
+        .unwrap_err();
+        assert!(e.to_string().contains("fraction"), "{e}");
+        assert!(
+            matches!(e, MeasuredError::OutOfRange { line: 2, .. }),
+            "{e:?}"
+        );
+    }
+
+    #[test]
+    fn noise_within_the_allowance_is_kept() {
+        let m = read("T (%)\n400,-1.9\n500,101.9\n").expect("within 2 points of 0 and 100 %");
+        assert_eq!(m.value.len(), 2, "both rows kept");
+        assert!((m.value[0] + 0.019).abs() < 1e-15, "{:?}", m.value);
+        assert!((m.value[1] - 1.019).abs() < 1e-15, "{:?}", m.value);
+    }
 }

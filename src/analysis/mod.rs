@@ -1,6 +1,7 @@
 //! Analyses of a design: spectra over wavelength and scans over the angle of incidence,
-//! figures over a band and comparisons ([`compare`]), and measured curves ([`measured`]).
-//! The views for specialty coatings each have a file: phase, group delay and GDD
+//! figures over a band and comparisons ([`compare`]), measured curves ([`measured`]), and
+//! from design to production: Monte Carlo [`tolerance`]s, layer [`sensitivity`] and optical
+//! [`monitor`]ing. The views for specialty coatings each have a file: phase, group delay and GDD
 //! ([`phase`]), the |E|² profile ([`field`]), the admittance locus ([`admittance`]), colour
 //! ([`color`]) and the wavelength × angle map ([`map`]); they share [`ViewError`].
 //!
@@ -12,13 +13,17 @@ pub mod admittance;
 pub mod color;
 pub mod compare;
 pub mod field;
+mod grid;
 mod limits;
 pub mod map;
 pub mod measured;
 mod media;
+pub mod monitor;
 pub mod phase;
 mod plan;
+pub mod sensitivity;
 mod sweep;
+pub mod tolerance;
 
 pub use limits::{MAX_WORK, check_work};
 pub use media::ViewError;

@@ -297,7 +297,7 @@ pub fn angles_deg(from_deg: f64, to_deg: f64, step_deg: f64) -> Result<Vec<f64>,
     Ok(a)
 }
 
-fn check_angle(aoi_deg: f64) -> Result<(), SweepError> {
+pub(super) fn check_angle(aoi_deg: f64) -> Result<(), SweepError> {
     if aoi_deg.is_finite() && (0.0..90.0).contains(&aoi_deg) {
         Ok(())
     } else {
@@ -306,7 +306,7 @@ fn check_angle(aoi_deg: f64) -> Result<(), SweepError> {
 }
 
 /// Every material the solver needs: layer materials first, then incident, substrate, exit.
-fn all_materials(d: &ResolvedDesign) -> Vec<&Material> {
+pub(super) fn all_materials(d: &ResolvedDesign) -> Vec<&Material> {
     d.materials
         .iter()
         .chain([&d.incident, &d.substrate, &d.exit])
@@ -314,7 +314,10 @@ fn all_materials(d: &ResolvedDesign) -> Vec<&Material> {
 }
 
 /// Indices of `mats` at each wavelength, row-major (wavelength, material).
-fn index_table(mats: &[&Material], wavelengths_nm: &[f64]) -> Result<Vec<Complex64>, SweepError> {
+pub(super) fn index_table(
+    mats: &[&Material],
+    wavelengths_nm: &[f64],
+) -> Result<Vec<Complex64>, SweepError> {
     let mut out = Vec::with_capacity(mats.len() * wavelengths_nm.len());
     for &w in wavelengths_nm {
         if !(w.is_finite() && w > 0.0) {
@@ -327,7 +330,11 @@ fn index_table(mats: &[&Material], wavelengths_nm: &[f64]) -> Result<Vec<Complex
     Ok(out)
 }
 
-fn warnings(d: &ResolvedDesign, wavelengths_nm: &[f64], indices: &[Complex64]) -> Vec<Warning> {
+pub(super) fn warnings(
+    d: &ResolvedDesign,
+    wavelengths_nm: &[f64],
+    indices: &[Complex64],
+) -> Vec<Warning> {
     let mut out: Vec<Warning> = Vec::new();
     let mut seen: Vec<&str> = Vec::new();
     for m in all_materials(d) {
@@ -355,7 +362,7 @@ fn warnings(d: &ResolvedDesign, wavelengths_nm: &[f64], indices: &[Complex64]) -
 
 /// Runs `solve_four(first, scratch)` for every group of four points (points past the end
 /// repeat the last one and are dropped), on all cores when the work is large.
-fn run(
+pub(super) fn run(
     points: usize,
     layers: usize,
     solve_four: impl Fn([usize; 4], &mut Scratch4) -> [Response; 4] + Sync,

@@ -33,6 +33,13 @@ use crate::material::import::WavelengthUnit;
 use crate::material::{Catalog, builtin};
 use crate::optics::Side;
 
+mod monitor;
+mod sensitivity;
+mod tolerance;
+
+pub use monitor::MonitorArgs;
+pub use sensitivity::SensitivityArgs;
+pub use tolerance::ToleranceArgs;
 pub mod guard;
 
 /// Design and analyse optical thin-film coatings. With no command, opens the window.
@@ -317,6 +324,15 @@ pub enum Command {
     /// Figures of several designs over a band as CSV: mean, minimum and maximum of R and T
     /// (mean of s and p) and where each extreme lies.
     Compare(CompareArgs),
+    /// Monte Carlo tolerances as CSV: wavelength_nm,nominal,p05,p50,p95 (fractions); a
+    /// summary on standard error.
+    Tolerance(ToleranceArgs),
+    /// Each layer's sensitivity as CSV, most sensitive first: layer,material,nm,sensitivity
+    /// (RMS change of R or T per 1 % thickness change).
+    Sensitivity(SensitivityArgs),
+    /// The optical monitoring signal through the run as CSV: deposited_nm,layer,signal; the
+    /// per-layer table (start, end, turning points) on standard error.
+    Monitor(MonitorArgs),
     /// Phase (unwrapped, degrees), group delay (fs) and GDD (fs²) of r and t over wavelength
     /// as CSV: wavelength_nm,phase_r_s_deg,phase_r_p_deg,phase_t_s_deg,phase_t_p_deg,
     /// gd_r_s_fs,gd_r_p_fs,gdd_r_s_fs2,gdd_r_p_fs2.
@@ -516,6 +532,9 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
         Command::Report(args) => report_cmd(&args, stdout)?,
         Command::Measured(args) => measured_cmd(&args, stdout, stderr)?,
         Command::Compare(args) => compare_cmd(&args, stdout, stderr)?,
+        Command::Tolerance(args) => tolerance::run(&args, stdout, stderr)?,
+        Command::Sensitivity(args) => sensitivity::run(&args, stdout, stderr)?,
+        Command::Monitor(args) => monitor::run(&args, stdout, stderr)?,
         cmd @ (Command::Phase(_)
         | Command::Field(_)
         | Command::Admittance(_)

@@ -5,6 +5,9 @@
 use std::io::{self, Write};
 
 use crate::analysis::compare::Figures;
+use crate::analysis::monitor::MonitorCurve;
+use crate::analysis::sensitivity::Sensitivity;
+use crate::analysis::tolerance::Envelope;
 use crate::analysis::{AngleScan, COLUMN_NAMES, Curves, Spectrum};
 use crate::number::Short;
 
@@ -47,6 +50,62 @@ pub fn write_nk(mut w: impl Write, rows: &[(f64, f64, f64)]) -> io::Result<()> {
     writeln!(w, "wavelength_nm,n,k")?;
     for (wl, n, k) in rows {
         writeln!(w, "{},{},{}", Short(*wl), Short(*n), Short(*k))?;
+    }
+    w.flush()
+}
+
+/// The tolerance envelope: `wavelength_nm,nominal,p05,…` — one column per percentile, named
+/// `p` and the percentile with two digits (`p05`, `p50`, `p95`; fractions).
+///
+/// ```
+/// use stackwise::analysis::tolerance::{Envelope, ToleranceStop};
+/// let e = Envelope {
+///     wavelength_nm: vec![500.0], nominal: vec![0.1], percentiles: vec![5.0, 95.0],
+///     bands: vec![vec![0.08], vec![0.13]], runs_done: 10, stop: ToleranceStop::Completed,
+///     warnings: vec![],
+/// };
+/// let mut out = Vec::new();
+/// stackwise::export::csv::write_envelope(&mut out, &e).unwrap();
+/// assert_eq!(String::from_utf8(out).unwrap(), "wavelength_nm,nominal,p05,p95\n500,0.1,0.08,0.13\n");
+/// ```
+pub fn write_envelope(mut w: impl Write, e: &Envelope) -> io::Result<()> {
+    write!(w, "wavelength_nm,nominal")?;
+    for p in &e.percentiles {
+        write!(w, ",p{p:02}")?;
+    }
+    writeln!(w)?;
+    for (i, wl) in e.wavelength_nm.iter().enumerate() {
+        write!(w, "{wl},{}", e.nominal[i])?;
+        for band in &e.bands {
+            write!(w, ",{}", band[i])?;
+        }
+        writeln!(w)?;
+    }
+    w.flush()
+}
+
+/// Layer sensitivities, most sensitive first: `layer,material,nm,sensitivity` (the RMS change
+/// of the quantity per 1 % thickness change, a fraction).
+pub fn write_sensitivity(mut w: impl Write, s: &Sensitivity) -> io::Result<()> {
+    writeln!(w, "layer,material,nm,sensitivity")?;
+    for l in s.ranked() {
+        writeln!(
+            w,
+            "{},{},{},{}",
+            l.layer,
+            field(&l.material),
+            l.nm,
+            l.sensitivity
+        )?;
+    }
+    w.flush()
+}
+
+/// The monitoring curve: `deposited_nm,layer,signal` (signal a fraction).
+pub fn write_monitor(mut w: impl Write, m: &MonitorCurve) -> io::Result<()> {
+    writeln!(w, "deposited_nm,layer,signal")?;
+    for ((x, layer), signal) in m.deposited_nm.iter().zip(&m.layer).zip(&m.signal) {
+        writeln!(w, "{x},{layer},{signal}")?;
     }
     w.flush()
 }

@@ -7,7 +7,8 @@
 //!
 //! The wavelength unit is nanometres or micrometres: chosen by the caller, or in
 //! [`WavelengthUnit::Auto`] read from a header that names it, else guessed from the numbers.
-//! Every decision the reader takes on its own is reported in [`NkImport::notes`].
+//! Every decision the reader takes on its own is reported in [`NkImport::notes`]. The text is
+//! read by the program's one table reader, [`crate::table::read_text_table`].
 //!
 //! ```
 //! use stackwise::material::import::{parse_nk_csv, WavelengthUnit};
@@ -18,35 +19,10 @@
 //! assert!((t.rows[1].0 - 800.0).abs() < 1e-9);
 //! ```
 
-use std::fmt;
-
 use super::{Material, Model};
+use crate::table::{Layout, Row, TableError, choose_unit, read_text_table};
 
-/// Wavelengths at or above this value are taken as nanometres when the unit is guessed; a
-/// table whose wavelengths are all below it is taken as micrometres.
-pub const GUESS_UM_BELOW: f64 = 50.0;
-
-/// The unit of the wavelength column.
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash)]
-pub enum WavelengthUnit {
-    /// Read it from the header, else guess from the values.
-    #[default]
-    Auto,
-    /// Nanometres.
-    Nm,
-    /// Micrometres.
-    Um,
-}
-
-impl fmt::Display for WavelengthUnit {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        f.write_str(match self {
-            WavelengthUnit::Auto => "auto",
-            WavelengthUnit::Nm => "nm",
-            WavelengthUnit::Um => "µm",
-        })
-    }
-}
+pub use crate::table::{GUESS_UM_BELOW, WavelengthUnit};
 
 /// A successfully read table.
 #[derive(Clone, Debug, PartialEq)]
@@ -218,313 +194,91 @@ pub enum ImportError {
     },
 }
 
-/// The column separator found in the data.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub(crate) enum Sep {
-    Comma,
-    Semicolon,
-    Tab,
-    Space,
-}
+const LAYOUT: Layout = Layout {
+    columns: &["wavelength", "n", "k"],
+    min_columns: 2,
+};
 
-impl Sep {
-    pub(crate) fn detect(line: &str) -> Self {
-        if line.contains('\t') {
-            Sep::Tab
-        } else if line.contains(';') {
-            Sep::Semicolon
-        } else if line.contains(',') {
-            Sep::Comma
-        } else {
-            Sep::Space
-        }
-    }
-
-    pub(crate) fn split(self, line: &str) -> Vec<&str> {
-        let mut cells: Vec<&str> = match self {
-            Sep::Comma => line.split(',').map(str::trim).collect(),
-            Sep::Semicolon => line.split(';').map(str::trim).collect(),
-            Sep::Tab => line.split('\t').map(str::trim).collect(),
-            Sep::Space => line.split_whitespace().collect(),
-        };
-        // A trailing separator ("550;1.46;") leaves an empty last cell; ignore it.
-        while cells.len() > 1 && cells.last().is_some_and(|c| c.is_empty()) {
-            cells.pop();
-        }
-        cells
-    }
-
-    pub(crate) fn words(self) -> &'static str {
-        match self {
-            Sep::Comma => "commas",
-            Sep::Semicolon => "semicolons",
-            Sep::Tab => "tabs",
-            Sep::Space => "spaces",
-        }
-    }
-}
-
-const COLUMNS: [&str; 3] = ["wavelength", "n", "k"];
-
-/// A parsed row before unit conversion: values and how they were written.
-struct RawRow<'a> {
-    line: usize,
-    values: [f64; 3],
-    wl_text: &'a str,
-}
-
-/// Whether a line starts with a number, i.e. is a data row rather than a header.
-pub(crate) fn starts_with_number(line: &str) -> bool {
-    line.split([',', ';', '\t', ' '])
-        .next()
-        .is_some_and(|first| first.trim().parse::<f64>().is_ok())
-}
-
-/// The part of a line before any `#` comment, trimmed.
-pub(crate) fn strip_comment(line: &str) -> &str {
-    line.split('#').next().unwrap_or_default().trim()
-}
-
-/// The unit a header or comment names, if it names exactly one.
-pub(crate) fn unit_in_header(text: &str) -> Option<WavelengthUnit> {
-    let lower = text.to_lowercase();
-    let mut nm = false;
-    let mut um = false;
-    for word in lower.split(|c: char| !c.is_alphanumeric()) {
-        match word {
-            "nm" | "nanometer" | "nanometers" | "nanometre" | "nanometres" => nm = true,
-            "um" | "µm" | "μm" | "micron" | "microns" | "micrometer" | "micrometers"
-            | "micrometre" | "micrometres" => um = true,
-            _ => {}
-        }
-    }
-    match (nm, um) {
-        (true, false) => Some(WavelengthUnit::Nm),
-        (false, true) => Some(WavelengthUnit::Um),
-        _ => None,
-    }
-}
-
-/// Parses one cell; `decimal_comma` allows a single comma as the decimal mark.
-fn parse_cell(
-    cell: &str,
-    line: usize,
-    col: usize,
-    decimal_comma: bool,
-    used_comma: &mut bool,
-) -> Result<f64, ImportError> {
-    let column = COLUMNS[col];
-    if cell.is_empty() {
-        return Err(ImportError::EmptyCell { line, column });
-    }
-    let value = if let Ok(v) = cell.parse::<f64>() {
-        v
-    } else {
-        let fixed = (decimal_comma && cell.matches(',').count() == 1 && !cell.contains('.'))
-            .then(|| cell.replace(',', "."))
-            .and_then(|s| s.parse::<f64>().ok());
-        let Some(v) = fixed else {
-            return Err(ImportError::NotANumber {
+impl From<TableError> for ImportError {
+    fn from(e: TableError) -> Self {
+        match e {
+            TableError::SingleColumn { line, text } => ImportError::SingleColumn { line, text },
+            TableError::TooManyColumns { line, count, .. } => {
+                ImportError::TooManyColumns { line, count }
+            }
+            // With two columns at least, a short row is a single column (reported above).
+            TableError::TooFewColumns { line, .. } => ImportError::SingleColumn {
                 line,
-                column,
-                text: cell.to_owned(),
-            });
-        };
-        *used_comma = true;
-        v
-    };
-    if !value.is_finite() {
-        return Err(ImportError::NotFinite {
-            line,
-            column,
-            text: cell.to_owned(),
-        });
-    }
-    Ok(value)
-}
-
-/// What a pass over the lines found.
-struct Scan<'a> {
-    rows: Vec<RawRow<'a>>,
-    sep: Sep,
-    first_line: usize,
-    columns: usize,
-    header_text: String,
-    header_lines: usize,
-    used_comma: bool,
-}
-
-/// Splits and checks one data line.
-fn read_row<'a>(
-    content: &'a str,
-    line: usize,
-    sep: Sep,
-    first_row: &mut Option<(usize, usize)>,
-    used_comma: &mut bool,
-) -> Result<RawRow<'a>, ImportError> {
-    let cells = sep.split(content);
-    match (cells.len(), *first_row) {
-        (0 | 1, _) => {
-            return Err(ImportError::SingleColumn {
+                text: String::new(),
+            },
+            TableError::NoRows => ImportError::NoRows,
+            TableError::ColumnCountChanged {
                 line,
-                text: content.to_owned(),
-            });
-        }
-        (count @ 4.., _) => return Err(ImportError::TooManyColumns { line, count }),
-        (count, None) => *first_row = Some((line, count)),
-        (count, Some((first_line, expected))) if count != expected => {
-            return Err(ImportError::ColumnCountChanged {
-                line,
-                found: count,
+                found,
                 first_line,
                 expected,
-            });
+            } => ImportError::ColumnCountChanged {
+                line,
+                found,
+                first_line,
+                expected,
+            },
+            TableError::EmptyCell { line, column } => ImportError::EmptyCell { line, column },
+            TableError::NotANumber { line, column, text } => {
+                ImportError::NotANumber { line, column, text }
+            }
+            TableError::NotFinite { line, column, text } => {
+                ImportError::NotFinite { line, column, text }
+            }
+            TableError::Duplicate {
+                first_line,
+                line,
+                text,
+            } => ImportError::Duplicate {
+                first_line,
+                line,
+                text,
+            },
+            TableError::NotMonotonic {
+                prev_line,
+                prev_text,
+                line,
+                text,
+            } => ImportError::NotMonotonic {
+                prev_line,
+                prev_text,
+                line,
+                text,
+            },
+            TableError::TooFewRows { line } => ImportError::TooFewRows { line },
         }
-        _ => {}
     }
-    let decimal_comma = sep != Sep::Comma;
-    let mut values = [0.0; 3];
-    for (col, cell) in cells.iter().enumerate() {
-        values[col] = parse_cell(cell, line, col, decimal_comma, used_comma)?;
-    }
-    let [wl, n, k] = values;
-    if wl <= 0.0 {
+}
+
+/// The checks of one row's values: wavelength and n positive, k not negative.
+fn check_row(row: &Row<'_>) -> Result<(), ImportError> {
+    let line = row.line;
+    let text = |col: usize| row.cells.get(col).copied().unwrap_or_default().to_owned();
+    let value = |col: usize| row.values.get(col).copied().unwrap_or(0.0);
+    if value(0) <= 0.0 {
         return Err(ImportError::BadWavelength {
             line,
-            text: cells[0].to_owned(),
+            text: text(0),
         });
     }
-    if n <= 0.0 {
+    if value(1) <= 0.0 {
         return Err(ImportError::BadN {
             line,
-            text: cells[1].to_owned(),
+            text: text(1),
         });
     }
-    if k < 0.0 {
+    if value(2) < 0.0 {
         return Err(ImportError::NegativeK {
             line,
-            text: cells.get(2).copied().unwrap_or_default().to_owned(),
+            text: text(2),
         });
     }
-    Ok(RawRow {
-        line,
-        values,
-        wl_text: cells[0],
-    })
-}
-
-/// The lines of a small numeric table, sorted out: header text (`#` comments and non-numeric
-/// lines before the first data line), the separator found on the first data line, and each
-/// data line with its 1-based number. Shared by the n,k and the measured-curve importers.
-pub(crate) struct TextTable<'a> {
-    /// Header text, one line per header or comment line.
-    pub header: String,
-    /// How many non-comment header lines came before the data.
-    pub header_lines: usize,
-    /// The separator of the first data line (`None` when there is no data line).
-    pub sep: Option<Sep>,
-    /// (line number, content without trailing comment) of each data line.
-    pub data: Vec<(usize, &'a str)>,
-}
-
-/// Sorts the lines of `text` into header and data (see [`TextTable`]).
-pub(crate) fn text_table(text: &str) -> TextTable<'_> {
-    let mut t = TextTable {
-        header: String::new(),
-        header_lines: 0,
-        sep: None,
-        data: Vec::new(),
-    };
-    for (idx, raw_line) in text.lines().enumerate() {
-        let trimmed = raw_line.trim();
-        if let Some(comment) = trimmed.strip_prefix('#') {
-            if t.data.is_empty() {
-                t.header.push_str(comment);
-                t.header.push('\n');
-            }
-            continue;
-        }
-        let content = strip_comment(trimmed);
-        if content.is_empty() {
-            continue;
-        }
-        if t.data.is_empty() && !starts_with_number(content) {
-            t.header.push_str(content);
-            t.header.push('\n');
-            t.header_lines += 1;
-            continue;
-        }
-        t.sep.get_or_insert_with(|| Sep::detect(content));
-        t.data.push((idx + 1, content));
-    }
-    t
-}
-
-/// One pass over the lines: header, separator, rows.
-fn scan(text: &str) -> Result<Scan<'_>, ImportError> {
-    let table = text_table(text);
-    let mut first_row: Option<(usize, usize)> = None; // (line, columns)
-    let mut used_comma = false;
-    let mut rows: Vec<RawRow<'_>> = Vec::with_capacity(table.data.len());
-    let sep = table.sep;
-    for &(line, content) in &table.data {
-        let s = sep.unwrap_or(Sep::Comma);
-        rows.push(read_row(content, line, s, &mut first_row, &mut used_comma)?);
-    }
-    let (header_text, header_lines) = (table.header, table.header_lines);
-    let (Some(sep), Some((first_line, columns))) = (sep, first_row) else {
-        return Err(ImportError::NoRows);
-    };
-    Ok(Scan {
-        rows,
-        sep,
-        first_line,
-        columns,
-        header_text,
-        header_lines,
-        used_comma,
-    })
-}
-
-/// The unit to use, whether it was guessed from magnitudes, and a note on how it was chosen.
-fn choose_unit(
-    unit: WavelengthUnit,
-    header_text: &str,
-    rows: &[RawRow<'_>],
-    notes: &mut Vec<String>,
-) -> (WavelengthUnit, bool) {
-    let all_small = rows.iter().all(|r| r.values[0] < GUESS_UM_BELOW);
-    let magnitude_guess = if all_small {
-        WavelengthUnit::Um
-    } else {
-        WavelengthUnit::Nm
-    };
-    if unit != WavelengthUnit::Auto {
-        notes.push(format!("wavelengths in {unit}, as chosen"));
-        if unit != magnitude_guess {
-            notes.push(format!(
-                "the wavelength values look like {magnitude_guess} rather than {unit}; \
-                 check the unit"
-            ));
-        }
-        return (unit, false);
-    }
-    if let Some(u) = unit_in_header(header_text) {
-        notes.push(format!("wavelengths in {u}, as the header says"));
-        return (u, false);
-    }
-    notes.push(if all_small {
-        format!(
-            "wavelengths read as µm because all are below {GUESS_UM_BELOW}; \
-             choose nm if that is wrong"
-        )
-    } else {
-        format!(
-            "wavelengths read as nm because some are {GUESS_UM_BELOW} or more; \
-             choose µm if that is wrong"
-        )
-    });
-    (magnitude_guess, true)
+    Ok(())
 }
 
 /// Reads a table of wavelength, n and (optionally) k from CSV-like text.
@@ -534,90 +288,38 @@ fn choose_unit(
 /// anything else as nm. Rows given in falling wavelength order are reversed. The result's
 /// wavelengths are in nm.
 pub fn parse_nk_csv(text: &str, unit: WavelengthUnit) -> Result<NkImport, ImportError> {
-    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
-    let scan = scan(text)?;
-    let rows = &scan.rows;
-    if rows.len() < 2 {
-        return Err(ImportError::TooFewRows {
-            line: scan.first_line,
-        });
-    }
-    let descending = check_order(rows)?;
-
-    let mut notes = Vec::new();
-    if scan.header_lines > 0 {
-        notes.push(format!(
-            "skipped {} header line{}",
-            scan.header_lines,
-            if scan.header_lines == 1 { "" } else { "s" }
-        ));
-    }
-    notes.push(format!(
-        "{} rows, columns separated by {}",
-        rows.len(),
-        scan.sep.words()
-    ));
-    if scan.used_comma {
-        notes.push("decimal commas read as decimal points (e.g. 1,45 = 1.45)".into());
-    }
-    if scan.columns == 2 {
+    let table = read_text_table(text, &LAYOUT, check_row)?;
+    let mut notes = table.notes();
+    if table.columns == 2 {
         notes.push("no k column: k = 0 (no absorption)".into());
     }
-    let (unit_used, unit_was_guessed) = choose_unit(unit, &scan.header_text, rows, &mut notes);
+    let (unit_used, unit_was_guessed) = choose_unit(unit, &table.header, table.keys(), &mut notes);
     let scale = if unit_used == WavelengthUnit::Um {
         1000.0
     } else {
         1.0
     };
-    let mut out: Vec<(f64, f64, f64)> = rows
+    let rows = table
+        .rows
         .iter()
-        .map(|r| (r.values[0] * scale, r.values[1], r.values[2]))
+        .map(|r| {
+            let v = |col: usize| r.values.get(col).copied().unwrap_or(0.0);
+            (v(0) * scale, v(1), v(2))
+        })
         .collect();
-    if descending {
-        out.reverse();
-        notes.push("rows were in falling wavelength order; sorted rising".into());
-    }
+    notes.extend(table.falling_note());
     Ok(NkImport {
-        rows: out,
+        rows,
         unit_used,
         unit_was_guessed,
         notes,
     })
 }
 
-/// Checks that wavelengths strictly rise or strictly fall (the first two rows set which);
-/// returns true if they fall.
-fn check_order(rows: &[RawRow<'_>]) -> Result<bool, ImportError> {
-    use std::cmp::Ordering;
-    let mut direction: Option<Ordering> = None;
-    for pair in rows.windows(2) {
-        let (a, b) = (&pair[0], &pair[1]);
-        // Values are finite (checked when read), so the comparison always succeeds.
-        let step = b.values[0]
-            .partial_cmp(&a.values[0])
-            .unwrap_or(Ordering::Equal);
-        if step == Ordering::Equal {
-            return Err(ImportError::Duplicate {
-                first_line: a.line,
-                line: b.line,
-                text: b.wl_text.to_owned(),
-            });
-        }
-        if *direction.get_or_insert(step) != step {
-            return Err(ImportError::NotMonotonic {
-                prev_line: a.line,
-                prev_text: a.wl_text.to_owned(),
-                line: b.line,
-                text: b.wl_text.to_owned(),
-            });
-        }
-    }
-    Ok(direction == Some(Ordering::Less))
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::table::unit_in_header;
     use approx::assert_relative_eq;
 
     fn ok(text: &str, unit: WavelengthUnit) -> NkImport {
@@ -893,9 +595,14 @@ mod tests {
             "\u{feff}",
             "1,2,3,\n",
             "µm\n",
-            "1 ,  2\n3 , 4",
         ] {
-            let _ = parse_nk_csv(text, WavelengthUnit::Auto);
+            assert!(
+                parse_nk_csv(text, WavelengthUnit::Auto).is_err(),
+                "{text:?} is no table"
+            );
         }
+        // Spaces around the separators are allowed (and values below 50 read as µm).
+        let t = ok("1 ,  2\n3 , 4", WavelengthUnit::Auto);
+        assert_rows(&t.rows, &[(1000.0, 2.0, 0.0), (3000.0, 4.0, 0.0)]);
     }
 }

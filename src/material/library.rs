@@ -7,6 +7,7 @@
 use std::sync::OnceLock;
 
 use super::{EV_UM, Material, MaterialError, Model, Oscillator};
+use crate::table::{Layout, TableError, WavelengthUnit, read_text_table, unit_in_header};
 
 /// Every built-in material, in display order.
 ///
@@ -90,51 +91,51 @@ fn sellmeier_um2(a: f64, b: &[f64], c: &[f64]) -> Model {
     }
 }
 
-/// Reads the numeric rows of a shipped CSV: `#` lines and the one header line are skipped,
-/// every other line must have `columns` numbers.
+/// Reads the numeric rows of a shipped CSV through the program's table reader: every row
+/// must have `columns.len()` numbers, wavelengths rising in the unit the column header names
+/// (`wavelength_nm` or `wavelength_um`).
 fn parse_rows(
     name: &str,
     (file, text): data::Asset,
-    columns: usize,
+    columns: &'static [&'static str],
 ) -> Result<Vec<Vec<f64>>, MaterialError> {
     let bad = |what: String| MaterialError::BadModel {
         name: name.to_owned(),
         what,
     };
-    let mut rows = Vec::new();
-    let mut header_seen = false;
-    for (i, line) in text.lines().enumerate() {
-        let line = line.trim();
-        if line.is_empty() || line.starts_with('#') {
-            continue;
-        }
-        if !header_seen {
-            header_seen = true;
-            continue;
-        }
-        let row = line
-            .split(',')
-            .map(|f| f.trim().parse::<f64>())
-            .collect::<Result<Vec<_>, _>>()
-            .map_err(|e| bad(format!("{file} line {}: {e} in {line:?}", i + 1)))?;
-        if row.len() != columns {
-            return Err(bad(format!(
-                "{file} line {}: expected {columns} numbers, found {}",
-                i + 1,
-                row.len()
-            )));
-        }
-        rows.push(row);
-    }
-    if rows.is_empty() {
-        return Err(bad(format!("{file} has no data rows")));
-    }
-    Ok(rows)
+    let layout = Layout {
+        columns,
+        min_columns: columns.len(),
+    };
+    let table = read_text_table(text, &layout, |_| Ok::<_, TableError>(()))
+        .map_err(|e| bad(format!("{file}: {e}")))?;
+    // The column header (the line just above the data) names the unit; the comments above
+    // it may name both units in their prose.
+    let columns_line = table.header.lines().last().unwrap_or_default();
+    let Some(unit) = unit_in_header(columns_line) else {
+        return Err(bad(format!(
+            "{file}: the column header {columns_line:?} names no wavelength unit; \
+             write wavelength_nm or wavelength_um"
+        )));
+    };
+    let scale = if unit == WavelengthUnit::Um {
+        1000.0
+    } else {
+        1.0
+    };
+    Ok(table
+        .rows
+        .into_iter()
+        .map(|mut r| {
+            r.values[0] *= scale;
+            r.values
+        })
+        .collect())
 }
 
 /// A (wavelength nm, n, k) table from a shipped CSV.
 fn nk_table(name: &str, asset: data::Asset) -> Result<Model, MaterialError> {
-    let rows = parse_rows(name, asset, 3)?;
+    let rows = parse_rows(name, asset, &["wavelength", "n", "k"])?;
     Ok(Model::Table {
         rows: rows.into_iter().map(|r| (r[0], r[1], r[2])).collect(),
     })
@@ -142,7 +143,7 @@ fn nk_table(name: &str, asset: data::Asset) -> Result<Model, MaterialError> {
 
 /// A (wavelength nm, k) table from a shipped CSV.
 fn k_table(name: &str, asset: data::Asset) -> Result<Vec<(f64, f64)>, MaterialError> {
-    Ok(parse_rows(name, asset, 2)?
+    Ok(parse_rows(name, asset, &["wavelength", "k"])?
         .into_iter()
         .map(|r| (r[0], r[1]))
         .collect())

@@ -8,6 +8,7 @@ use num_complex::Complex64;
 use serde::{Deserialize, Serialize};
 
 use super::MaterialError;
+use crate::table::interp::held;
 
 /// Photon energy in eV times wavelength in µm (h c / e), as used by the Lorentz–Drude form.
 pub const EV_UM: f64 = 1.239_841_984;
@@ -100,21 +101,6 @@ pub enum Model {
 )]
 fn is_zero(x: &f64) -> bool {
     *x == 0.0
-}
-
-/// Linear interpolation over rows sorted by wavelength (`at` gives a row's wavelength, `val` its
-/// value); the end values are held outside the rows.
-fn interp<R>(rows: &[R], x: f64, at: impl Fn(&R) -> f64, val: impl Fn(&R) -> f64) -> f64 {
-    let hi = rows.partition_point(|r| at(r) <= x);
-    if hi == 0 {
-        return val(&rows[0]);
-    }
-    if hi == rows.len() {
-        return val(&rows[hi - 1]);
-    }
-    let (a, b) = (&rows[hi - 1], &rows[hi]);
-    let t = (x - at(a)) / (at(b) - at(a));
-    val(a) + t * (val(b) - val(a))
 }
 
 impl Model {
@@ -220,13 +206,13 @@ impl Model {
                 real_sqrt(n2)
             }
             Model::Table { rows } => {
-                let n = interp(rows, wavelength_nm, |r| r.0, |r| r.1);
-                let k = interp(rows, wavelength_nm, |r| r.0, |r| r.2);
+                let n = held(rows, wavelength_nm, |r| r.0, |r| r.1);
+                let k = held(rows, wavelength_nm, |r| r.0, |r| r.2);
                 Complex64::new(n, k)
             }
             Model::WithK { n, k } => {
                 let re = n.index_at(wavelength_nm).re;
-                Complex64::new(re, interp(k, wavelength_nm, |r| r.0, |r| r.1))
+                Complex64::new(re, held(k, wavelength_nm, |r| r.0, |r| r.1))
             }
             Model::LorentzDrude {
                 plasma_ev,

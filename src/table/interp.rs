@@ -1,0 +1,121 @@
+//! Straight-line interpolation between points sorted by rising x — the one interpolation the
+//! program uses for dispersion tables, measured curves and differences of spectra.
+//!
+//! ```
+//! use stackwise::table::interp::{held, within};
+//! assert_eq!(within(&[1.0, 3.0], &[10.0, 30.0], 2.0), Some(20.0));
+//! assert_eq!(within(&[1.0, 3.0], &[10.0, 30.0], 3.5), None);
+//! let rows = [(1.0, 10.0), (3.0, 30.0)];
+//! assert_eq!(held(&rows, 3.5, |r| r.0, |r| r.1), 30.0);
+//! ```
+
+/// Where a value of x falls among the rows.
+enum Spot {
+    /// Below the first row (or x is NaN).
+    Before,
+    /// Exactly on row `i`.
+    At(usize),
+    /// Strictly between rows `lo` and `lo + 1`, a fraction `t` of the way.
+    Between { lo: usize, t: f64 },
+    /// Above the last row.
+    After,
+}
+
+fn locate<R>(rows: &[R], x: f64, at: &impl Fn(&R) -> f64) -> Spot {
+    let hi = rows.partition_point(|r| at(r) <= x);
+    if hi == 0 {
+        return Spot::Before;
+    }
+    let lo = hi - 1;
+    let x_lo = at(&rows[lo]);
+    #[expect(
+        clippy::float_cmp,
+        reason = "a row's own x gives its own value exactly"
+    )]
+    if x_lo == x {
+        return Spot::At(lo);
+    }
+    match rows.get(hi) {
+        None => Spot::After,
+        Some(next) => Spot::Between {
+            lo,
+            t: (x - x_lo) / (at(next) - x_lo),
+        },
+    }
+}
+
+fn blend(a: f64, b: f64, t: f64) -> f64 {
+    a + t * (b - a)
+}
+
+/// The value at `x` of rows sorted by rising `at(row)`, interpolated linearly in `at`; the
+/// first and last values are held outside the rows. A row's own x gives its own value
+/// exactly. NaN when there are no rows.
+#[must_use]
+pub fn held<R>(rows: &[R], x: f64, at: impl Fn(&R) -> f64, val: impl Fn(&R) -> f64) -> f64 {
+    let (Some(first), Some(last)) = (rows.first(), rows.last()) else {
+        return f64::NAN;
+    };
+    match locate(rows, x, &at) {
+        Spot::Before => val(first),
+        Spot::After => val(last),
+        Spot::At(i) => val(&rows[i]),
+        Spot::Between { lo, t } => blend(val(&rows[lo]), val(&rows[lo + 1]), t),
+    }
+}
+
+/// The value of the curve `ys` over rising `xs` at `x` by straight-line interpolation, or
+/// `None` outside `xs[0]..=xs[last]` (and for NaN). A point of `xs` gives its own `ys` value
+/// exactly. Extra entries of the longer slice are ignored.
+#[must_use]
+pub fn within(xs: &[f64], ys: &[f64], x: f64) -> Option<f64> {
+    let n = xs.len().min(ys.len());
+    let (xs, ys) = (&xs[..n], &ys[..n]);
+    match locate(xs, x, &|&v| v) {
+        Spot::Before | Spot::After => None,
+        Spot::At(i) => ys.get(i).copied(),
+        Spot::Between { lo, t } => Some(blend(ys[lo], ys[lo + 1], t)),
+    }
+}
+
+#[cfg(test)]
+#[allow(
+    clippy::float_cmp,
+    reason = "these results must be exact, not merely close"
+)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn within_interpolates_inside_and_refuses_outside() {
+        let xs = [400.0, 500.0, 700.0];
+        let ys = [1.0, 2.0, 0.0];
+        assert_eq!(within(&xs, &ys, 450.0), Some(1.5), "midpoint");
+        assert_eq!(within(&xs, &ys, 600.0), Some(1.0), "midpoint");
+        assert_eq!(within(&xs, &ys, 500.0), Some(2.0), "node");
+        assert_eq!(within(&xs, &ys, 400.0), Some(1.0), "first node");
+        assert_eq!(within(&xs, &ys, 700.0), Some(0.0), "last node");
+        assert_eq!(within(&xs, &ys, 399.9), None, "below");
+        assert_eq!(within(&xs, &ys, 700.1), None, "above");
+        assert_eq!(within(&xs, &ys, f64::NAN), None, "NaN");
+        assert_eq!(within(&[], &[], 1.0), None, "empty");
+        assert_eq!(
+            within(&xs, &ys[..2], 600.0),
+            None,
+            "shorter ys limit the span"
+        );
+    }
+
+    #[test]
+    fn held_holds_the_ends() {
+        let rows = [(400.0, 2.0), (600.0, 1.0)];
+        let at = |r: &(f64, f64)| r.0;
+        let val = |r: &(f64, f64)| r.1;
+        assert_eq!(held(&rows, 500.0, at, val), 1.5, "midpoint");
+        assert_eq!(held(&rows, 300.0, at, val), 2.0, "first value held");
+        assert_eq!(held(&rows, 900.0, at, val), 1.0, "last value held");
+        assert_eq!(held(&rows, 600.0, at, val), 1.0, "last node");
+        assert!(held(&rows[..0], 500.0, at, val).is_nan(), "no rows");
+        assert_eq!(held(&rows[..1], 900.0, at, val), 2.0, "a single row");
+    }
+}
