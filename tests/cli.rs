@@ -1,8 +1,9 @@
 //! The command line end to end: the built binary on the example designs and on bad input.
 
-use std::path::PathBuf;
+mod common;
 
-use assert_cmd::Command;
+use common::{fails, here, ok};
+
 use stackwise::analysis::{spectrum, wavelengths_nm};
 use stackwise::design::file;
 use stackwise::number::Short;
@@ -15,38 +16,6 @@ const EXAMPLES: [&str; 5] = [
     "designs/protected-silver-mirror.ron",
     "designs/window-ar-both-faces.ron",
 ];
-
-fn here(rel: &str) -> PathBuf {
-    PathBuf::from(env!("CARGO_MANIFEST_DIR")).join(rel)
-}
-
-fn stackwise() -> Command {
-    Command::cargo_bin("stackwise").expect("the binary builds")
-}
-
-/// Runs and returns (stdout, stderr), asserting success.
-fn ok(args: &[&str]) -> (String, String) {
-    let out = stackwise().args(args).output().expect("runs");
-    let (o, e) = (
-        String::from_utf8(out.stdout).expect("UTF-8 output"),
-        String::from_utf8(out.stderr).expect("UTF-8 errors"),
-    );
-    assert!(out.status.success(), "{args:?} failed: {e}");
-    (o, e)
-}
-
-/// Runs and returns stderr, asserting failure with a message.
-fn fails(args: &[&str]) -> String {
-    let out = stackwise().args(args).output().expect("runs");
-    let e = String::from_utf8_lossy(&out.stderr).into_owned();
-    assert!(!out.status.success(), "{args:?} should fail");
-    assert!(
-        e.starts_with("error"),
-        "{args:?}: message should start with error: {e}"
-    );
-    assert!(!e.contains("panicked"), "{args:?} panicked: {e}");
-    e
-}
 
 fn rows(csv: &str) -> Vec<Vec<f64>> {
     csv.lines()
@@ -295,6 +264,8 @@ fn compare_prints_each_designs_band_figures() {
         "{csv}"
     );
     let wl = wavelengths_nm(450.0, 650.0, 2.0).unwrap();
+    let lines: Vec<&str> = lines.collect();
+    assert_eq!(lines.len(), 2, "one row per design: {csv}");
     for (path, line) in [a, b].iter().zip(lines) {
         let d = file::load(path).unwrap();
         let s = spectrum(&d.resolve().unwrap(), &wl, 10.0, Side::Front).unwrap();
@@ -597,4 +568,183 @@ fn extreme_values_in_a_file_are_refused_by_name() {
     assert!(e.contains("layer 1 nm is 1e308"), "{e}");
     let e = fails(&["info", s(&here("tests/broken/tiny_reference.ron"))]);
     assert!(e.contains("reference_nm is 1e-308"), "{e}");
+}
+
+const AR: &str = "designs/camera-window-ar.ron";
+const MIRROR: &str = "designs/laser-mirror-1064-45.ron";
+
+/// Runs `stackwise ARGS`, asserting success, and returns its standard output.
+fn ok_out(args: &[&str]) -> String {
+    ok(args).0
+}
+
+/// The spectrum of an example design, computed in-process.
+fn computed(rel: &str, from: f64, to: f64, step: f64, aoi: f64) -> stackwise::analysis::Spectrum {
+    let d = file::load(&here(rel)).expect("example design loads");
+    let wl = wavelengths_nm(from, to, step).expect("valid range");
+    spectrum(&d.resolve().expect("resolves"), &wl, aoi, Side::Front).expect("computes")
+}
+
+// ---------------------------------------------------------------- plot, report, measured
+
+#[test]
+fn cli_plot_writes_png_and_svg() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let png = dir.path().join("a.PNG");
+    let svg = dir.path().join("b.svg");
+    let ar = here(AR);
+    let mirror = here(MIRROR);
+    let (ar, mirror) = (ar.to_str().expect("path"), mirror.to_str().expect("path"));
+    ok_out(&[
+        "plot",
+        ar,
+        "--out",
+        png.to_str().expect("path"),
+        "--width",
+        "300",
+        "--height",
+        "200",
+    ]);
+    let img = image::load_from_memory(&std::fs::read(&png).expect("written"))
+        .expect("PNG decodes")
+        .to_rgb8();
+    assert_eq!(img.dimensions(), (300, 200), "size");
+    ok_out(&[
+        "plot",
+        mirror,
+        "--out",
+        svg.to_str().expect("path"),
+        "--compare",
+        ar,
+        "--quantity",
+        "t",
+        "--aoi",
+        "45",
+        "--from",
+        "900",
+        "--to",
+        "1200",
+        "--step",
+        "2",
+    ]);
+    let text = std::fs::read_to_string(&svg).expect("svg written");
+    roxmltree::Document::parse(&text).expect("valid XML");
+    for name in [
+        "Turning mirror, 1064 nm at 45 deg",
+        "Camera cover window, visible AR",
+        "Transmittance T (%)",
+    ] {
+        assert!(text.contains(name), "missing {name}");
+    }
+    assert!(
+        text.contains("Computed values are theoretical"),
+        "mirror plot carries the caution"
+    );
+
+    let bad = dir.path().join("c.jpg");
+    let e = fails(&["plot", ar, "--out", bad.to_str().expect("path")]);
+    assert!(e.contains(".png or .svg"), "{e}");
+    let e = fails(&[
+        "plot",
+        ar,
+        "--out",
+        png.to_str().expect("path"),
+        "--width",
+        "50",
+    ]);
+    assert!(e.contains("width 50"), "{e}");
+    let e = fails(&[
+        "plot",
+        ar,
+        "--out",
+        svg.to_str().expect("path"),
+        "--compare",
+        "missing.ron",
+    ]);
+    assert!(e.contains("missing.ron"), "{e}");
+    let e = fails(&[
+        "plot",
+        ar,
+        "--out",
+        svg.to_str().expect("path"),
+        "--from",
+        "900",
+        "--to",
+        "400",
+    ]);
+    assert!(e.contains("--from"), "{e}");
+}
+
+#[test]
+fn cli_report_in_each_format() {
+    let ar = here(AR);
+    let ar = ar.to_str().expect("path");
+    let csv = ok_out(&["report", ar, "--format", "csv"]);
+    assert!(
+        csv.contains("layer,material,nm,qwot,optical_nm,cumulative_nm,locked"),
+        "{csv}"
+    );
+    assert!(
+        ok_out(&["report", ar]).starts_with("# Layer report: Camera cover window"),
+        "md default"
+    );
+    let dir = tempfile::tempdir().expect("temp dir");
+    let out = dir.path().join("r.html");
+    ok_out(&[
+        "report",
+        ar,
+        "--format",
+        "html",
+        "--out",
+        out.to_str().expect("path"),
+    ]);
+    let html = std::fs::read_to_string(&out).expect("written");
+    assert!(
+        html.starts_with("<!DOCTYPE html>") && html.ends_with("</html>\n"),
+        "whole page"
+    );
+    let e = fails(&["report", ar, "--format", "pdf"]);
+    assert!(e.contains("pdf"), "{e}");
+    let e = fails(&["report", "no-such-design.ron"]);
+    assert!(e.contains("no-such-design.ron"), "{e}");
+}
+
+#[test]
+fn cli_measured_reports_units_and_rms() {
+    let s = computed(AR, 400.0, 700.0, 10.0, 0.0);
+    let dir = tempfile::tempdir().expect("temp dir");
+    // A "measurement" made from the computed T, written in µm and percent, offset by 1 %.
+    let mut text = String::from("wavelength,T\n");
+    for (wl, t) in s.wavelength_nm.iter().zip(&s.curves.t) {
+        text.push_str(&format!("{};{}\n", wl / 1000.0, 100.0 * t + 1.0).replace('.', ","));
+    }
+    let path = dir.path().join("meas.csv");
+    std::fs::write(&path, text).expect("write");
+    let ar = here(AR);
+    let out = ok_out(&[
+        "measured",
+        path.to_str().expect("path"),
+        ar.to_str().expect("path"),
+    ]);
+    assert!(out.contains("wavelength unit: µm"), "{out}");
+    assert!(out.contains("value scale: percent"), "{out}");
+    let rms: f64 = out
+        .lines()
+        .find_map(|l| l.strip_prefix("rms_fraction,"))
+        .expect("rms line")
+        .parse()
+        .expect("a number");
+    // The 1 % offset, plus a little from interpolating the computed curve between its points.
+    assert!((rms - 0.01).abs() < 2e-4, "rms {rms}");
+
+    let broken = dir.path().join("broken.csv");
+    std::fs::write(&broken, "400,0.1\n500,oops\n").expect("write");
+    let e = fails(&[
+        "measured",
+        broken.to_str().expect("path"),
+        ar.to_str().expect("path"),
+    ]);
+    assert!(e.contains("line 2") && e.contains("oops"), "{e}");
+    let e = fails(&["measured", "no-such-file.csv", ar.to_str().expect("path")]);
+    assert!(e.contains("no-such-file.csv"), "{e}");
 }

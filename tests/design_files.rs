@@ -1,16 +1,12 @@
 //! Design files: good files load exactly, saving is atomic and round-trips, and every broken
 //! file in `tests/broken/` is refused with a message that names the problem.
 
-use std::path::{Path, PathBuf};
+mod common;
+
+use common::here;
 
 use stackwise::design::{Design, Layer, Nm, Pol, Quantity, TargetKind, file};
 use stackwise::material::{Material, Model};
-
-fn here(rel: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("tests")
-        .join(rel)
-}
 
 #[test]
 fn architecture_example_loads_with_its_comments() {

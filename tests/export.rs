@@ -1,10 +1,12 @@
 //! Hand-off outputs: CSV round trip, plot images, the layer report, measured curves, band
 //! figures, and the plot/report/measured commands end to end.
 
-use std::collections::HashSet;
-use std::path::PathBuf;
+mod common;
 
-use assert_cmd::Command;
+use common::here;
+
+use std::collections::HashSet;
+
 use stackwise::analysis::compare::{band_figures, compare, difference};
 use stackwise::analysis::measured::{
     MeasuredCurve, MeasuredError, ValueScale, parse_measured_csv, rms_difference,
@@ -18,10 +20,6 @@ use stackwise::export::report::LayerReport;
 use stackwise::export::{ExportError, SAFETY_CAUTION};
 use stackwise::material::import::WavelengthUnit;
 use stackwise::optics::Side;
-
-fn here(rel: &str) -> PathBuf {
-    PathBuf::from(env!("CARGO_MANIFEST_DIR")).join(rel)
-}
 
 fn design(rel: &str) -> Design {
     file::load(&here(rel)).expect("example design loads")
@@ -582,188 +580,4 @@ fn difference_on_equal_grids_is_plain_subtraction() {
         "overlap only"
     );
     assert!(!d.wavelength_nm.is_empty(), "some overlap");
-}
-
-// ---------------------------------------------------------------- CLI end to end
-
-fn stackwise() -> Command {
-    Command::cargo_bin("stackwise").expect("the binary builds")
-}
-
-fn run_ok(args: &[&str]) -> String {
-    let out = stackwise().args(args).output().expect("runs");
-    let e = String::from_utf8_lossy(&out.stderr);
-    assert!(out.status.success(), "{args:?} failed: {e}");
-    String::from_utf8(out.stdout).expect("UTF-8")
-}
-
-fn run_fails(args: &[&str]) -> String {
-    let out = stackwise().args(args).output().expect("runs");
-    let e = String::from_utf8_lossy(&out.stderr).into_owned();
-    assert!(!out.status.success(), "{args:?} should fail");
-    assert!(e.starts_with("error"), "{args:?}: {e}");
-    assert!(!e.contains("panicked"), "{args:?} panicked: {e}");
-    e
-}
-
-#[test]
-fn cli_plot_writes_png_and_svg() {
-    let dir = tempfile::tempdir().expect("temp dir");
-    let png = dir.path().join("a.PNG");
-    let svg = dir.path().join("b.svg");
-    let ar = here(AR);
-    let mirror = here(MIRROR);
-    let (ar, mirror) = (ar.to_str().expect("path"), mirror.to_str().expect("path"));
-    run_ok(&[
-        "plot",
-        ar,
-        "--out",
-        png.to_str().expect("path"),
-        "--width",
-        "300",
-        "--height",
-        "200",
-    ]);
-    let img = image::load_from_memory(&std::fs::read(&png).expect("written"))
-        .expect("PNG decodes")
-        .to_rgb8();
-    assert_eq!(img.dimensions(), (300, 200), "size");
-    run_ok(&[
-        "plot",
-        mirror,
-        "--out",
-        svg.to_str().expect("path"),
-        "--compare",
-        ar,
-        "--quantity",
-        "t",
-        "--aoi",
-        "45",
-        "--from",
-        "900",
-        "--to",
-        "1200",
-        "--step",
-        "2",
-    ]);
-    let text = std::fs::read_to_string(&svg).expect("svg written");
-    roxmltree::Document::parse(&text).expect("valid XML");
-    for name in [
-        "Turning mirror, 1064 nm at 45 deg",
-        "Camera cover window, visible AR",
-        "Transmittance T (%)",
-    ] {
-        assert!(text.contains(name), "missing {name}");
-    }
-    assert!(
-        text.contains("Computed values are theoretical"),
-        "mirror plot carries the caution"
-    );
-
-    let bad = dir.path().join("c.jpg");
-    let e = run_fails(&["plot", ar, "--out", bad.to_str().expect("path")]);
-    assert!(e.contains(".png or .svg"), "{e}");
-    let e = run_fails(&[
-        "plot",
-        ar,
-        "--out",
-        png.to_str().expect("path"),
-        "--width",
-        "50",
-    ]);
-    assert!(e.contains("width 50"), "{e}");
-    let e = run_fails(&[
-        "plot",
-        ar,
-        "--out",
-        svg.to_str().expect("path"),
-        "--compare",
-        "missing.ron",
-    ]);
-    assert!(e.contains("missing.ron"), "{e}");
-    let e = run_fails(&[
-        "plot",
-        ar,
-        "--out",
-        svg.to_str().expect("path"),
-        "--from",
-        "900",
-        "--to",
-        "400",
-    ]);
-    assert!(e.contains("--from"), "{e}");
-}
-
-#[test]
-fn cli_report_in_each_format() {
-    let ar = here(AR);
-    let ar = ar.to_str().expect("path");
-    let csv = run_ok(&["report", ar, "--format", "csv"]);
-    assert!(
-        csv.contains("layer,material,nm,qwot,optical_nm,cumulative_nm,locked"),
-        "{csv}"
-    );
-    assert!(
-        run_ok(&["report", ar]).starts_with("# Layer report: Camera cover window"),
-        "md default"
-    );
-    let dir = tempfile::tempdir().expect("temp dir");
-    let out = dir.path().join("r.html");
-    run_ok(&[
-        "report",
-        ar,
-        "--format",
-        "html",
-        "--out",
-        out.to_str().expect("path"),
-    ]);
-    let html = std::fs::read_to_string(&out).expect("written");
-    assert!(
-        html.starts_with("<!DOCTYPE html>") && html.ends_with("</html>\n"),
-        "whole page"
-    );
-    let e = run_fails(&["report", ar, "--format", "pdf"]);
-    assert!(e.contains("pdf"), "{e}");
-    let e = run_fails(&["report", "no-such-design.ron"]);
-    assert!(e.contains("no-such-design.ron"), "{e}");
-}
-
-#[test]
-fn cli_measured_reports_units_and_rms() {
-    let s = computed(AR, 400.0, 700.0, 10.0, 0.0);
-    let dir = tempfile::tempdir().expect("temp dir");
-    // A "measurement" made from the computed T, written in µm and percent, offset by 1 %.
-    let mut text = String::from("wavelength,T\n");
-    for (wl, t) in s.wavelength_nm.iter().zip(&s.curves.t) {
-        text.push_str(&format!("{};{}\n", wl / 1000.0, 100.0 * t + 1.0).replace('.', ","));
-    }
-    let path = dir.path().join("meas.csv");
-    std::fs::write(&path, text).expect("write");
-    let ar = here(AR);
-    let out = run_ok(&[
-        "measured",
-        path.to_str().expect("path"),
-        ar.to_str().expect("path"),
-    ]);
-    assert!(out.contains("wavelength unit: µm"), "{out}");
-    assert!(out.contains("value scale: percent"), "{out}");
-    let rms: f64 = out
-        .lines()
-        .find_map(|l| l.strip_prefix("rms_fraction,"))
-        .expect("rms line")
-        .parse()
-        .expect("a number");
-    // The 1 % offset, plus a little from interpolating the computed curve between its points.
-    assert!((rms - 0.01).abs() < 2e-4, "rms {rms}");
-
-    let broken = dir.path().join("broken.csv");
-    std::fs::write(&broken, "400,0.1\n500,oops\n").expect("write");
-    let e = run_fails(&[
-        "measured",
-        broken.to_str().expect("path"),
-        ar.to_str().expect("path"),
-    ]);
-    assert!(e.contains("line 2") && e.contains("oops"), "{e}");
-    let e = run_fails(&["measured", "no-such-file.csv", ar.to_str().expect("path")]);
-    assert!(e.contains("no-such-file.csv"), "{e}");
 }

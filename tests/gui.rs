@@ -522,7 +522,11 @@ fn ar_start() -> Harness<'static, App> {
 fn targets_show_pass_fail_and_edits_are_undo_steps() {
     let mut h = ar_start();
     // One quarter wave of SiO2 on N-BK7 leaves about 1 % reflectance: neither target is met.
-    h.get_by_label_contains("0 of 2 targets met");
+    assert_eq!(
+        h.query_all_by_label_contains("0 of 2 targets met").count(),
+        2,
+        "in the targets panel and in the status line"
+    );
     h.get_by_label_contains("target 1: R (mean) ≤ 0.2 % at 0°, 420–680 nm");
     h.get_by_label("Add target").click();
     h.run();

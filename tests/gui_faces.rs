@@ -152,6 +152,7 @@ fn each_design_exports_in_its_window_colour() {
             step: Some(10.0),
         },
         aoi: 0.0,
+        side: stackwise::cli::SideArg::Front,
         quantity: stackwise::cli::QuantityArg::R,
         pol: stackwise::cli::PolArg::Mean,
         width: 800,

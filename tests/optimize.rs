@@ -1,9 +1,12 @@
 //! Targets and optimisation: merit, refinement, needle insertion, cancel, bad input, and the
 //! `optimize` command end to end.
 
+mod common;
+
+use common::stackwise;
+
 use std::ops::ControlFlow;
 
-use assert_cmd::Command;
 use stackwise::analysis::spectrum;
 use stackwise::design::{Design, Layer, Nm, Pol, Quantity, Target, TargetKind, file};
 use stackwise::material::{Material, Model};
@@ -342,10 +345,6 @@ fn bad_input_is_refused_with_a_clear_message() {
         msg(&ok(), &nan).contains("minimum thickness"),
         "NaN minimum"
     );
-}
-
-fn stackwise() -> Command {
-    Command::cargo_bin("stackwise").expect("the binary builds")
 }
 
 #[test]

@@ -1,9 +1,12 @@
 //! The analysis-view commands end to end (phase, field, admittance, color, map): the built
 //! binary, its exact CSV headers, its numbers against the library's, images, and bad input.
 
+mod common;
+
+use common::{fails, ok, stackwise};
+
 use std::path::{Path, PathBuf};
 
-use assert_cmd::Command;
 use stackwise::analysis::phase::phase_spectrum;
 use stackwise::design::{Design, Layer, Nm, file};
 use stackwise::material::{Material, Model};
@@ -41,10 +44,6 @@ fn design(incident: f64, substrate: f64, layers: &[(&str, f64, f64)]) -> Design 
 
 // ---------------------------------------------------------------- the commands
 
-fn stackwise() -> Command {
-    Command::cargo_bin("stackwise").expect("the binary builds")
-}
-
 fn run(args: &[&str]) -> (bool, String, String) {
     let out = stackwise().args(args).output().expect("runs");
     (
@@ -52,20 +51,6 @@ fn run(args: &[&str]) -> (bool, String, String) {
         String::from_utf8(out.stdout).expect("UTF-8"),
         String::from_utf8(out.stderr).expect("UTF-8"),
     )
-}
-
-fn ok(args: &[&str]) -> (String, String) {
-    let (success, o, e) = run(args);
-    assert!(success, "{args:?} failed: {e}");
-    (o, e)
-}
-
-fn fails(args: &[&str]) -> String {
-    let (success, _, e) = run(args);
-    assert!(!success, "{args:?} should fail");
-    assert!(e.starts_with("error"), "{args:?}: {e}");
-    assert!(!e.contains("panicked"), "{args:?} panicked: {e}");
-    e
 }
 
 fn saved(dir: &Path, name: &str, d: &Design) -> PathBuf {
@@ -238,7 +223,7 @@ fn bad_input_gets_a_clear_message() {
         "{e}"
     );
     let e = fails(&["map", m, "--out", m]);
-    assert!(e.contains("design file itself"), "{e}");
+    assert!(e.contains("also an input of this command"), "{e}");
     assert!(file::load(Path::new(m)).is_ok(), "the design is untouched");
 
     // A wavelength outside every material's data: the materials are named, as a warning

@@ -7,7 +7,7 @@ use anyhow::{Result, bail};
 use clap::Args;
 
 use super::field::SpArg;
-use super::{emit, load_design, report};
+use super::{emit, load_design, print_warnings};
 use crate::analysis::admittance::{AdmittanceLocus, admittance_locus};
 
 /// Settings of the admittance command.
@@ -55,6 +55,6 @@ pub fn run(a: &AdmittanceArgs, stdout: &mut dyn Write, stderr: &mut dyn Write) -
     }
     let step = a.step.unwrap_or(a.wavelength / 200.0);
     let y = admittance_locus(&d.resolve()?, a.wavelength, a.aoi, a.pol.into(), step)?;
-    report(&y.warnings, stderr)?;
+    print_warnings(&y.warnings, stderr)?;
     emit(a.out.as_deref(), stdout, |w| write_locus(w, &y))
 }

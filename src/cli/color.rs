@@ -7,7 +7,7 @@ use anyhow::{Context as _, Result};
 use clap::Args;
 
 use super::map::{AngleRange, parse_angles};
-use super::{emit, load_design, report};
+use super::{emit, load_design, print_warnings};
 use crate::analysis;
 use crate::analysis::color::{Colour, Illuminant, Observer, colour_path};
 
@@ -64,7 +64,7 @@ pub fn run(a: &ColorArgs, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Res
         None => vec![a.aoi],
     };
     let path = colour_path(&d.resolve()?, &angles, illuminant, observer)?;
-    report(&path.warnings, stderr)?;
+    print_warnings(&path.warnings, stderr)?;
     if a.angles.is_none() {
         writeln!(
             stderr,

@@ -6,7 +6,7 @@ use std::path::PathBuf;
 use anyhow::{Result, bail};
 use clap::{Args, ValueEnum};
 
-use super::{emit, load_design, report};
+use super::{emit, load_design, print_warnings};
 use crate::analysis::field::{FieldProfile, InterfaceField, field_profile};
 use crate::cautions;
 use crate::optics::field::Polarisation;
@@ -106,7 +106,7 @@ pub fn run(a: &FieldArgs, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Res
     }
     let step = a.step.unwrap_or(a.wavelength / 200.0);
     let f = field_profile(&d.resolve()?, a.wavelength, a.aoi, a.pol.into(), step)?;
-    report(&f.warnings, stderr)?;
+    print_warnings(&f.warnings, stderr)?;
     writeln!(stderr, "caution: {}", cautions::FIELD)?;
     emit(a.out.as_deref(), stdout, |w| {
         if a.peaks {

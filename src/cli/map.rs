@@ -7,7 +7,8 @@ use std::path::PathBuf;
 use anyhow::{Context as _, Result};
 use clap::Args;
 
-use super::{PolArg, QuantityArg, Range, emit, image_kind, load_design, report};
+use super::plot::image_kind;
+use super::{PolArg, QuantityArg, Range, emit, load_design, print_warnings};
 use crate::analysis;
 use crate::analysis::map::{RtMap, rt_map};
 use crate::export;
@@ -99,19 +100,18 @@ pub fn run(a: &MapArgs, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resul
         a.pol.into(),
         |_| ControlFlow::Continue(()),
     )?;
-    report(&m.warnings, stderr)?;
+    print_warnings(&m.warnings, stderr)?;
     let image = a.out.as_deref().map(image_kind).and_then(Result::ok);
     match (a.out.as_deref(), image) {
         (Some(path), Some(kind)) => {
             let mut spec = map_heatmap(&d.name, &m);
-            let mirror_or_blocking = m.values.iter().any(|&v| match a.quantity {
-                QuantityArg::R => v >= export::MIRROR_R_FROM,
-                QuantityArg::T => v <= export::BLOCKING_T_UPTO,
-                QuantityArg::A => false,
-            });
-            if export::needs_caution(&d.name) || mirror_or_blocking {
-                spec.caution = Some(export::SAFETY_CAUTION.to_owned());
-            }
+            let values = m.values.iter().copied();
+            let (r, t): (Vec<f64>, Vec<f64>) = match a.quantity {
+                QuantityArg::R => (values.collect(), Vec::new()),
+                QuantityArg::T => (Vec::new(), values.collect()),
+                QuantityArg::A => (Vec::new(), Vec::new()),
+            };
+            spec.caution = export::caution_for(false, [d.name.as_str()], r, t).map(str::to_owned);
             let bytes = match kind {
                 ImageFormat::Png => render_heatmap_png(&spec, a.width, a.height)?,
                 ImageFormat::Svg => render_heatmap_svg(&spec, a.width, a.height)?.into_bytes(),

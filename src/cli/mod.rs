@@ -6,41 +6,39 @@
 mod admittance;
 mod color;
 mod field;
+pub mod guard;
+mod info;
+mod library;
 mod map;
+mod measured;
+mod monitor;
+pub mod optimize;
 mod phase;
+mod plot;
+mod sensitivity;
+mod tolerance;
 mod views;
 
 pub use admittance::AdmittanceArgs;
 pub use color::ColorArgs;
 pub use field::{FieldArgs, SpArg};
 pub use map::{AngleRange, MapArgs, parse_angles};
+pub use monitor::MonitorArgs;
 pub use phase::PhaseArgs;
+pub use sensitivity::SensitivityArgs;
+pub use tolerance::ToleranceArgs;
 
 use std::io::{self, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
-pub mod optimize;
-
 use anyhow::{Context as _, Result, bail};
 use clap::{Args, CommandFactory as _, FromArgMatches as _, Parser, Subcommand, ValueEnum};
 
-use crate::analysis::measured::{ValueScale, parse_measured_csv, rms_difference};
-use crate::analysis::{self, Warning};
+use crate::analysis::{self, Sweep, SweepData, Warning};
 use crate::design::{Design, Pol, Quantity, file};
 use crate::export;
-use crate::material::import::WavelengthUnit;
-use crate::material::{Catalog, builtin};
 use crate::optics::Side;
-
-mod monitor;
-mod sensitivity;
-mod tolerance;
-
-pub use monitor::MonitorArgs;
-pub use sensitivity::SensitivityArgs;
-pub use tolerance::ToleranceArgs;
-pub mod guard;
 
 /// Design and analyse optical thin-film coatings. With no command, opens the window.
 #[derive(Debug, Parser)]
@@ -91,6 +89,27 @@ pub struct Range {
 }
 
 impl Range {
+    /// The wavelength sweep these bounds ask for: given bounds, else 0.7 to 1.5 × the
+    /// reference wavelength; 400 steps unless a step is given.
+    pub fn sweep(self, reference_nm: f64, aoi_deg: f64, side: Side) -> Result<Sweep> {
+        let (lo, hi) = Sweep::default_span_nm(reference_nm);
+        let (from_nm, to_nm) = (self.from.unwrap_or(lo), self.to.unwrap_or(hi));
+        let sweep = match self.step {
+            Some(step_nm) => Sweep::Wavelength {
+                from_nm,
+                to_nm,
+                step_nm,
+                aoi_deg,
+                side,
+            },
+            None => Sweep::wavelengths_in_default_steps(from_nm, to_nm, aoi_deg, side),
+        };
+        sweep
+            .points()
+            .context("wavelength range (--from, --to, --step)")?;
+        Ok(sweep)
+    }
+
     /// The wavelengths: given bounds, else `lo`/`hi`; 400 steps unless a step is given.
     pub fn wavelengths_nm(self, lo: f64, hi: f64) -> Result<Vec<f64>> {
         let from = self.from.unwrap_or(lo);
@@ -190,6 +209,9 @@ pub struct PlotArgs {
     /// Angle of incidence in degrees, in the medium the light comes from.
     #[arg(long, default_value_t = 0.0)]
     pub aoi: f64,
+    /// Side the light comes from.
+    #[arg(long, value_enum, default_value_t = SideArg::Front)]
+    pub side: SideArg,
     /// What to plot.
     #[arg(long, value_enum, default_value_t = QuantityArg::R)]
     pub quantity: QuantityArg,
@@ -399,28 +421,6 @@ pub fn load_design(path: &Path) -> Result<Design> {
     Ok(d)
 }
 
-fn compare_cmd(a: &CompareArgs, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Result<()> {
-    let band = Range {
-        from: Some(a.from),
-        to: Some(a.to),
-        step: a.step,
-    };
-    let wl = band.wavelengths_nm(a.from, a.to)?;
-    let mut rows = Vec::with_capacity(a.designs.len());
-    for path in &a.designs {
-        let d = load_design(path)?;
-        let s = analysis::spectrum(&d.resolve()?, &wl, a.aoi, Side::Front)
-            .with_context(|| format!("design {:?}", d.name))?;
-        report(&s.warnings, stderr)?;
-        let f = analysis::compare::band_figures(&s, a.from, a.to)
-            .with_context(|| format!("design {:?}", d.name))?;
-        rows.push((d.name, f));
-    }
-    emit(a.out.as_deref(), stdout, |w| {
-        export::csv::write_compare(w, &rows)
-    })
-}
-
 /// Writes what `fill` produces to the file `out` (atomically: never half written) or, without
 /// one, to standard output.
 fn emit(
@@ -438,11 +438,30 @@ fn emit(
     Ok(())
 }
 
-fn report(warnings: &[Warning], stderr: &mut dyn Write) -> Result<()> {
+fn print_warnings(warnings: &[Warning], stderr: &mut dyn Write) -> Result<()> {
     for w in warnings {
         writeln!(stderr, "warning: {w}")?;
     }
     Ok(())
+}
+
+/// Loads `design`, runs the sweep `make` describes for it, and writes the CSV: the
+/// `spectrum` and `angles` commands.
+fn write_sweep(
+    design: &Path,
+    make: impl FnOnce(&Design) -> Result<Sweep>,
+    out: Option<&Path>,
+    stdout: &mut dyn Write,
+    stderr: &mut dyn Write,
+) -> Result<()> {
+    let d = load_design(design)?;
+    let sweep = make(&d)?;
+    let data = analysis::run_sweep(&d.resolve()?, &sweep)?;
+    print_warnings(data.warnings(), stderr)?;
+    emit(out, stdout, |w| match &data {
+        SweepData::Spectrum(s) => export::csv::write_spectrum(w, s),
+        SweepData::Angles(a) => export::csv::write_angles(w, a),
+    })
 }
 
 /// Runs one command, writing results to `stdout` and warnings to `stderr`.
@@ -454,15 +473,13 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
             aoi,
             side,
             out,
-        } => {
-            let d = load_design(&design)?;
-            let wl = range.wavelengths_nm(0.7 * d.reference_nm, 1.5 * d.reference_nm)?;
-            let s = analysis::spectrum(&d.resolve()?, &wl, aoi, side.into())?;
-            report(&s.warnings, stderr)?;
-            emit(out.as_deref(), stdout, |w| {
-                export::csv::write_spectrum(w, &s)
-            })?;
-        }
+        } => write_sweep(
+            &design,
+            |d| range.sweep(d.reference_nm, aoi, side.into()),
+            out.as_deref(),
+            stdout,
+            stderr,
+        )?,
         Command::Angles {
             design,
             wavelength,
@@ -472,66 +489,34 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
             side,
             out,
         } => {
-            let d = load_design(&design)?;
-            if !(wavelength.is_finite() && wavelength > 0.0) {
-                bail!("--wavelength must be a positive number of nm, got {wavelength}");
-            }
-            let angles = analysis::angles_deg(from, to, step)
-                .context("angle range (--from, --to, --step)")?;
-            let s = analysis::angle_scan(&d.resolve()?, wavelength, &angles, side.into())?;
-            report(&s.warnings, stderr)?;
-            emit(out.as_deref(), stdout, |w| export::csv::write_angles(w, &s))?;
+            let sweep = |_: &Design| {
+                if !(wavelength.is_finite() && wavelength > 0.0) {
+                    bail!("--wavelength must be a positive number of nm, got {wavelength}");
+                }
+                let sweep = Sweep::Angle {
+                    wavelength_nm: wavelength,
+                    from_deg: from,
+                    to_deg: to,
+                    step_deg: step,
+                    side: side.into(),
+                };
+                sweep
+                    .points()
+                    .context("angle range (--from, --to, --step)")?;
+                Ok(sweep)
+            };
+            write_sweep(&design, sweep, out.as_deref(), stdout, stderr)?;
         }
         Command::Nk {
             material,
             range,
             design,
-        } => {
-            let d = design.as_deref().map(load_design).transpose()?;
-            let user = d.as_ref().map_or(&[][..], |d| &d.materials[..]);
-            let m = Catalog::new(user).get(&material)?;
-            let (lo, hi) = m.valid_range_nm();
-            let (lo, hi) = if hi.is_finite() {
-                (lo, hi)
-            } else {
-                (300.0, 1100.0)
-            };
-            let wl = range.wavelengths_nm(lo, hi)?;
-            if let Some(w) = m.range_warning(&wl) {
-                writeln!(stderr, "warning: {w}")?;
-            }
-            let rows = wl
-                .iter()
-                .map(|&w| m.index_at(w).map(|n| (w, n.re, n.im)))
-                .collect::<Result<Vec<_>, _>>()?;
-            export::csv::write_nk(stdout, &rows)?;
-        }
-        Command::Materials => {
-            writeln!(stdout, "name,model,min_nm,max_nm,source")?;
-            for m in builtin() {
-                let (lo, hi) = m.valid_range_nm();
-                let fmt = |x: f64| {
-                    if x.is_finite() && x > 0.0 {
-                        x.to_string()
-                    } else {
-                        String::new()
-                    }
-                };
-                writeln!(
-                    stdout,
-                    "{},{},{},{},{}",
-                    crate::export::csv::field(&m.name),
-                    crate::export::csv::field(m.model.kind_name()),
-                    fmt(lo),
-                    fmt(hi),
-                    crate::export::csv::field(&m.source)
-                )?;
-            }
-        }
-        Command::Plot(args) => plot(&args, stderr)?,
+        } => library::nk(&material, range, design.as_deref(), stdout, stderr)?,
+        Command::Materials => library::materials(stdout)?,
+        Command::Plot(args) => plot::plot(&args, stderr)?,
         Command::Report(args) => report_cmd(&args, stdout)?,
-        Command::Measured(args) => measured_cmd(&args, stdout, stderr)?,
-        Command::Compare(args) => compare_cmd(&args, stdout, stderr)?,
+        Command::Measured(args) => measured::measured(&args, stdout, stderr)?,
+        Command::Compare(args) => measured::compare(&args, stdout, stderr)?,
         Command::Tolerance(args) => tolerance::run(&args, stdout, stderr)?,
         Command::Sensitivity(args) => sensitivity::run(&args, stdout, stderr)?,
         Command::Monitor(args) => monitor::run(&args, stdout, stderr)?,
@@ -543,109 +528,9 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
         Command::Optimize(args) => optimize::run(&args, stdout, stderr)?,
         Command::Info { design } => {
             let d = load_design(&design)?;
-            info(&d, stdout)?;
+            info::info(&d, stdout)?;
         }
     }
-    Ok(())
-}
-
-fn info(d: &Design, out: &mut dyn Write) -> Result<()> {
-    writeln!(out, "{}", d.name)?;
-    let sub = match d.substrate_mm {
-        Some(mm) => format!("{} ({mm} mm, back surface counted)", d.substrate),
-        None => format!("{} (semi-infinite)", d.substrate),
-    };
-    writeln!(
-        out,
-        "incident: {}   substrate: {sub}   exit: {}   reference: {} nm",
-        d.incident, d.exit, d.reference_nm
-    )?;
-    let r = export::report::LayerReport::new(d)?;
-    info_table(out, "layer", &r.rows)?;
-    writeln!(out, "{} layers, {:.3} nm in all", r.rows.len(), r.total_nm)?;
-    if !r.back_rows.is_empty() {
-        writeln!(out, "back face (layer 1 on the substrate):")?;
-        info_table(out, "back", &r.back_rows)?;
-        writeln!(
-            out,
-            "{} back layers, {:.3} nm in all",
-            r.back_rows.len(),
-            r.back_total_nm()
-        )?;
-    }
-    Ok(())
-}
-
-/// One face's layer table for `info`.
-fn info_table(out: &mut dyn Write, first: &str, rows: &[export::report::LayerRow]) -> Result<()> {
-    writeln!(
-        out,
-        "{first:>5}  {:<16} {:>12} {:>9} {:>14}",
-        "material", "nm", "QWOT", "optical nm"
-    )?;
-    for r in rows {
-        writeln!(
-            out,
-            "{:>5}  {:<16} {:>12.3} {:>9.4} {:>14.3}{}",
-            r.no,
-            r.material,
-            r.nm,
-            r.qwot,
-            r.optical_nm,
-            if r.locked { "  locked" } else { "" }
-        )?;
-    }
-    Ok(())
-}
-
-fn image_kind(path: &Path) -> Result<export::plot::ImageFormat> {
-    match export::plot::ImageFormat::from_path(path) {
-        Some(k) => Ok(k),
-        None => bail!(
-            "cannot tell the image format of {}: name the file .png or .svg",
-            path.display()
-        ),
-    }
-}
-
-fn plot(a: &PlotArgs, stderr: &mut dyn Write) -> Result<()> {
-    let kind = image_kind(&a.out)?;
-    // The size is checked before any sweep runs.
-    export::plot::check_size(kind, a.width, a.height)?;
-    let first = load_design(&a.design)?;
-    let wl = a
-        .range
-        .wavelengths_nm(0.7 * first.reference_nm, 1.5 * first.reference_nm)?;
-    let mut designs = vec![first];
-    for p in &a.compare {
-        designs.push(load_design(p)?);
-    }
-    let mut spectra = Vec::with_capacity(designs.len());
-    for d in &designs {
-        let s = analysis::spectrum(&d.resolve()?, &wl, a.aoi, Side::Front)
-            .with_context(|| format!("design {:?}", d.name))?;
-        report(&s.warnings, stderr)?;
-        spectra.push(s);
-    }
-    let named: Vec<(&str, &analysis::Spectrum)> = designs
-        .iter()
-        .map(|d| d.name.as_str())
-        .zip(&spectra)
-        .collect();
-    let mut spec = export::plot::spectrum_plot(&named, a.quantity.into(), a.pol.into());
-    if a.caution
-        || designs.iter().any(|d| export::needs_caution(&d.name))
-        || spectra.iter().any(export::shows_blocking)
-    {
-        spec.caution = Some(export::SAFETY_CAUTION.to_owned());
-    }
-    let (w, h) = (a.width, a.height);
-    let bytes = match kind {
-        export::plot::ImageFormat::Png => export::plot::render_png(&spec, w, h)?,
-        export::plot::ImageFormat::Svg => export::plot::render_svg(&spec, w, h)?.into_bytes(),
-    };
-    export::write_atomic(&a.out, &bytes)
-        .with_context(|| format!("cannot write {}", a.out.display()))?;
     Ok(())
 }
 
@@ -659,63 +544,4 @@ fn report_cmd(a: &ReportArgs, stdout: &mut dyn Write) -> Result<()> {
         ReportFormat::Html => r.to_html(),
     };
     emit(a.out.as_deref(), stdout, |w| w.write_all(text.as_bytes()))
-}
-
-fn measured_cmd(a: &MeasuredArgs, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Result<()> {
-    let (measured, design, quantity, aoi) = (&a.measured, &a.design, a.quantity.into(), a.aoi);
-    let text = std::fs::read_to_string(measured)
-        .with_context(|| format!("cannot read {}", measured.display()))?;
-    let m = parse_measured_csv(&text, WavelengthUnit::Auto, ValueScale::Auto)
-        .with_context(|| format!("in {}", measured.display()))?;
-    let d = load_design(design)?;
-    let (Some(&lo), Some(&hi)) = (m.wavelength_nm.first(), m.wavelength_nm.last()) else {
-        bail!("{} holds no rows", measured.display());
-    };
-    // Compute on a grid at least as fine as the measurement, over its span.
-    let finest = m
-        .wavelength_nm
-        .windows(2)
-        .map(|w| w[1] - w[0])
-        .fold(f64::INFINITY, f64::min);
-    let step = finest.min((hi - lo) / 400.0).max((hi - lo) / 100_000.0);
-    let mut wl =
-        analysis::wavelengths_nm(lo, hi, step).context("the measured file's wavelength span")?;
-    if wl.last().is_some_and(|&last| last < hi) {
-        wl.push(hi);
-    }
-    let s = analysis::spectrum(&d.resolve()?, &wl, aoi, Side::Front)?;
-    report(&s.warnings, stderr)?;
-    for note in &m.notes {
-        writeln!(stdout, "note: {note}")?;
-    }
-    writeln!(
-        stdout,
-        "wavelength unit: {}   value scale: {}",
-        m.unit_used, m.scale_used
-    )?;
-    let q = match quantity {
-        Quantity::R => "R",
-        Quantity::T => "T",
-        Quantity::A => "A",
-    };
-    let Some((rms, n)) = rms_difference(&m, &s, quantity) else {
-        bail!(
-            "the measured curve ({lo}–{hi} nm) and the computed one do not overlap; \
-             check the wavelength unit"
-        );
-    };
-    if !rms.is_finite() {
-        bail!(
-            "the RMS difference of {} from the design is not a finite number; check the \
-             measured values",
-            measured.display()
-        );
-    }
-    writeln!(
-        stdout,
-        "{q} (mean of s and p) at {aoi}°: RMS difference {:.4} percentage points over {n} points, {lo}–{hi} nm",
-        100.0 * rms
-    )?;
-    writeln!(stdout, "rms_fraction,{rms}")?;
-    Ok(())
 }

@@ -6,7 +6,7 @@ use std::path::PathBuf;
 use anyhow::Result;
 use clap::Args;
 
-use super::{Range, emit, load_design, report};
+use super::{Range, emit, load_design, print_warnings};
 use crate::analysis::phase::{PhaseSpectrum, phase_spectrum};
 use crate::optics::Side;
 
@@ -57,6 +57,6 @@ pub fn run(a: &PhaseArgs, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Res
         .range
         .wavelengths_nm(0.7 * d.reference_nm, 1.5 * d.reference_nm)?;
     let p = phase_spectrum(&d.resolve()?, &wl, a.aoi, Side::Front)?;
-    report(&p.warnings, stderr)?;
+    print_warnings(&p.warnings, stderr)?;
     emit(a.out.as_deref(), stdout, |w| write_phase(w, &p))
 }

@@ -6,7 +6,7 @@ use std::path::PathBuf;
 use anyhow::{Context as _, Result};
 use clap::Args;
 
-use super::{MeasuredQuantityArg, PolArg, Range, emit, load_design, report};
+use super::{MeasuredQuantityArg, PolArg, Range, emit, load_design, print_warnings};
 use crate::analysis::sensitivity::sensitivity;
 use crate::export;
 
@@ -40,7 +40,7 @@ pub fn run(a: &SensitivityArgs, stdout: &mut dyn Write, stderr: &mut dyn Write) 
         .wavelengths_nm(0.7 * d.reference_nm, 1.5 * d.reference_nm)?;
     let s = sensitivity(&d.resolve()?, &wl, a.aoi, a.quantity.into(), a.pol.into())
         .with_context(|| format!("sensitivity of {}", a.design.display()))?;
-    report(&s.warnings, stderr)?;
+    print_warnings(&s.warnings, stderr)?;
     emit(a.out.as_deref(), stdout, |w| {
         export::csv::write_sensitivity(w, &s)
     })

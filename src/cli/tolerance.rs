@@ -7,7 +7,7 @@ use std::path::PathBuf;
 use anyhow::{Context as _, Result, bail};
 use clap::Args;
 
-use super::{MeasuredQuantityArg, PolArg, Range, emit, load_design, report};
+use super::{MeasuredQuantityArg, PolArg, Range, emit, load_design, print_warnings};
 use crate::analysis::tolerance::{
     DEFAULT_INDEX_PCT, DEFAULT_SYSTEMATIC_PCT, DEFAULT_THICKNESS_PCT, ToleranceSettings, tolerance,
 };
@@ -74,7 +74,7 @@ pub fn run(a: &ToleranceArgs, stdout: &mut dyn Write, stderr: &mut dyn Write) ->
     let started = std::time::Instant::now();
     let e = tolerance(&d.resolve()?, &wl, &settings, |_| ControlFlow::Continue(()))
         .with_context(|| format!("tolerances of {}", a.design.display()))?;
-    report(&e.warnings, stderr)?;
+    print_warnings(&e.warnings, stderr)?;
     emit(a.out.as_deref(), stdout, |w| {
         export::csv::write_envelope(w, &e)
     })?;

@@ -1,23 +1,18 @@
 //! Dispatch of the analysis-view commands (phase, field, admittance, color, map), with the
-//! guard that keeps `--out` from overwriting the design it reads.
+//! check that keeps `--out` from overwriting the design it reads (also when called in-process,
+//! past the command line's guard).
 
 use std::io::Write;
 use std::path::Path;
 
-use anyhow::{Result, bail};
+use anyhow::Result;
 
 use super::{Command, admittance, color, field, map, phase};
 
 /// Refuses an `--out` that names the design file itself (it would be overwritten).
 fn refuse_input_as_output(out: Option<&Path>, design: &Path) -> Result<()> {
-    if let Some(out) = out
-        && let (Ok(a), Ok(b)) = (out.canonicalize(), design.canonicalize())
-        && a == b
-    {
-        bail!(
-            "--out {} is the design file itself; choose another name so the design is kept",
-            out.display()
-        );
+    if let Some(out) = out {
+        crate::export::refuse_input(out, &[design])?;
     }
     Ok(())
 }

@@ -52,8 +52,40 @@ pub const BLOCKING_T_UPTO: f64 = 0.01;
 /// ```
 #[must_use]
 pub fn shows_blocking(s: &crate::analysis::Spectrum) -> bool {
-    s.curves.r.iter().any(|&r| r >= MIRROR_R_FROM)
-        || s.curves.t.iter().any(|&t| t <= BLOCKING_T_UPTO)
+    caution_for(
+        false,
+        [],
+        s.curves.r.iter().copied(),
+        s.curves.t.iter().copied(),
+    )
+    .is_some()
+}
+
+/// The one rule for when an image or report carries [`SAFETY_CAUTION`]: when asked for, when a
+/// design's name calls for it ([`needs_caution`]), or when what it shows reaches mirror-grade
+/// reflection or blocking (R ≥ [`MIRROR_R_FROM`], T ≤ [`BLOCKING_T_UPTO`]).
+///
+/// `r` and `t` are every reflectance and transmittance the output shows (fractions).
+///
+/// ```
+/// use stackwise::export::{SAFETY_CAUTION, caution_for};
+/// assert_eq!(caution_for(false, ["Camera window AR"], [0.01], [0.99]), None);
+/// assert_eq!(caution_for(false, ["Camera window AR"], [0.995], []), Some(SAFETY_CAUTION));
+/// assert_eq!(caution_for(false, ["Laser turning mirror"], [], []), Some(SAFETY_CAUTION));
+/// assert_eq!(caution_for(true, [""], [], []), Some(SAFETY_CAUTION));
+/// ```
+#[must_use]
+pub fn caution_for<'a>(
+    asked: bool,
+    names: impl IntoIterator<Item = &'a str>,
+    r: impl IntoIterator<Item = f64>,
+    t: impl IntoIterator<Item = f64>,
+) -> Option<&'static str> {
+    let shows = asked
+        || names.into_iter().any(needs_caution)
+        || r.into_iter().any(|r| r >= MIRROR_R_FROM)
+        || t.into_iter().any(|t| t <= BLOCKING_T_UPTO);
+    shows.then_some(SAFETY_CAUTION)
 }
 
 /// Why an image or report could not be made.

@@ -114,7 +114,7 @@ impl LayerReport {
             back_rows,
             per_material,
             total_nm,
-            caution: super::needs_caution(&d.name).then(|| super::SAFETY_CAUTION.to_owned()),
+            caution: super::caution_for(false, [d.name.as_str()], [], []).map(str::to_owned),
         })
     }
 

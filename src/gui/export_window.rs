@@ -245,9 +245,13 @@ pub fn view_plot(design: &Design, view: &ViewSettings) -> Result<plot::PlotSpec,
     let s = view_spectrum(design, view)?;
     let (q, p) = shown_curve(view);
     let mut spec = plot::spectrum_plot(&[(design.name.as_str(), &s)], q, p);
-    if export::needs_caution(&design.name) || export::shows_blocking(&s) {
-        spec.caution = Some(export::SAFETY_CAUTION.to_owned());
-    }
+    spec.caution = export::caution_for(
+        false,
+        [design.name.as_str()],
+        s.curves.r.iter().copied(),
+        s.curves.t.iter().copied(),
+    )
+    .map(str::to_owned);
     Ok(spec)
 }
 

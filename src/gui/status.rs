@@ -51,6 +51,28 @@ impl App {
             for w in warnings {
                 ui.colored_label(ui.visuals().warn_fg_color, format!("warning: {w}"));
             }
+            match &active.targets {
+                Some((_, Ok(e))) => {
+                    let colour = if e.passed == e.targets.len() {
+                        super::theme::PASS
+                    } else {
+                        super::theme::FAIL
+                    };
+                    ui.colored_label(
+                        colour,
+                        format!(
+                            "· merit {:.4} %, {} of {} targets met",
+                            e.merit * 100.0,
+                            e.passed,
+                            e.targets.len()
+                        ),
+                    );
+                }
+                Some((_, Err(e))) => {
+                    ui.colored_label(ui.visuals().warn_fg_color, format!("· targets: {e}"));
+                }
+                None => {}
+            }
             if let Some(s) = &self.status {
                 ui.colored_label(ui.visuals().error_fg_color, s);
             }

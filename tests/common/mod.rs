@@ -83,3 +83,37 @@ pub fn qw_stack(
     from_air.reverse();
     from_air
 }
+
+/// A path inside the source tree (example designs, test files).
+pub fn here(rel: &str) -> std::path::PathBuf {
+    std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join(rel)
+}
+
+/// The built `stackwise` binary, ready for arguments.
+pub fn stackwise() -> assert_cmd::Command {
+    assert_cmd::Command::cargo_bin("stackwise").expect("the binary builds")
+}
+
+/// Runs `stackwise ARGS` and returns (stdout, stderr), asserting success.
+pub fn ok(args: &[&str]) -> (String, String) {
+    let out = stackwise().args(args).output().expect("runs");
+    let (o, e) = (
+        String::from_utf8(out.stdout).expect("UTF-8 output"),
+        String::from_utf8(out.stderr).expect("UTF-8 errors"),
+    );
+    assert!(out.status.success(), "{args:?} failed: {e}");
+    (o, e)
+}
+
+/// Runs `stackwise ARGS` and returns stderr, asserting a failure with a message and no panic.
+pub fn fails(args: &[&str]) -> String {
+    let out = stackwise().args(args).output().expect("runs");
+    let e = String::from_utf8_lossy(&out.stderr).into_owned();
+    assert!(!out.status.success(), "{args:?} should fail");
+    assert!(
+        e.starts_with("error"),
+        "{args:?}: message should start with error: {e}"
+    );
+    assert!(!e.contains("panicked"), "{args:?} panicked: {e}");
+    e
+}
