@@ -3,7 +3,12 @@
 
 mod common;
 
-use common::here;
+use std::path::PathBuf;
+
+/// A file of the test corpus (`tests/good/`, `tests/broken/`).
+fn here(rel: &str) -> PathBuf {
+    common::here("tests").join(rel)
+}
 
 use stackwise::design::{Design, Layer, Nm, Pol, Quantity, TargetKind, file};
 use stackwise::material::{Material, Model};

@@ -181,16 +181,7 @@ impl From<PolArg> for Pol {
     }
 }
 
-/// Layer report formats.
-#[derive(Clone, Copy, Debug, ValueEnum)]
-pub enum ReportFormat {
-    /// Comma-separated values, full precision.
-    Csv,
-    /// Markdown tables.
-    Md,
-    /// A self-contained HTML page.
-    Html,
-}
+pub use crate::export::report::ReportFormat;
 
 /// Settings of the plot command.
 #[derive(Debug, Args)]
@@ -236,7 +227,7 @@ pub struct ReportArgs {
     /// The design file (.ron).
     pub design: PathBuf,
     /// Output format.
-    #[arg(long, value_enum, default_value_t = ReportFormat::Md)]
+    #[arg(long, value_enum, default_value_t = ReportFormat::Markdown)]
     pub format: ReportFormat,
     /// Write the report here instead of standard output.
     #[arg(long)]
@@ -538,10 +529,6 @@ fn report_cmd(a: &ReportArgs, stdout: &mut dyn Write) -> Result<()> {
     let d = load_design(&a.design)?;
     let r = export::report::LayerReport::new(&d)
         .with_context(|| format!("layer report of {}", a.design.display()))?;
-    let text = match a.format {
-        ReportFormat::Csv => r.to_csv(),
-        ReportFormat::Md => r.to_markdown(),
-        ReportFormat::Html => r.to_html(),
-    };
+    let text = r.render(a.format);
     emit(a.out.as_deref(), stdout, |w| w.write_all(text.as_bytes()))
 }

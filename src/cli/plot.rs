@@ -3,20 +3,14 @@
 use std::io::Write;
 use std::path::Path;
 
-use anyhow::{Context as _, Result, bail};
+use anyhow::{Context as _, Result};
 
 use super::{PlotArgs, load_design, print_warnings};
 use crate::analysis::{self, SweepData};
 use crate::export;
 
 pub(super) fn image_kind(path: &Path) -> Result<export::plot::ImageFormat> {
-    match export::plot::ImageFormat::from_path(path) {
-        Some(k) => Ok(k),
-        None => bail!(
-            "cannot tell the image format of {}: name the file .png or .svg",
-            path.display()
-        ),
-    }
+    Ok(export::plot::ImageFormat::for_path(path)?)
 }
 
 pub(super) fn plot(a: &PlotArgs, stderr: &mut dyn Write) -> Result<()> {

@@ -141,4 +141,10 @@ pub enum ExportError {
     /// A layer's QWOT or optical thickness could not be computed.
     #[error("layer report: {0}")]
     Design(#[from] crate::design::DesignError),
+    /// An image file name whose extension names no image format.
+    #[error("cannot tell the image format of {path}: name the file .png or .svg")]
+    UnknownImageFormat {
+        /// The file name given.
+        path: String,
+    },
 }

@@ -160,6 +160,22 @@ pub enum ImageFormat {
 }
 
 impl ImageFormat {
+    /// The file name extension, without the dot.
+    #[must_use]
+    pub fn extension(self) -> &'static str {
+        match self {
+            Self::Png => "png",
+            Self::Svg => "svg",
+        }
+    }
+
+    /// The format of the image file `path`, or an error that says how to name it.
+    pub fn for_path(path: &std::path::Path) -> Result<Self, ExportError> {
+        Self::from_path(path).ok_or_else(|| ExportError::UnknownImageFormat {
+            path: path.display().to_string(),
+        })
+    }
+
     /// The format named by a file's extension (`.png` or `.svg`, any case).
     ///
     /// ```

@@ -55,6 +55,30 @@ pub struct MaterialTotal {
     pub nm: f64,
 }
 
+/// A layer report format.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, clap::ValueEnum)]
+pub enum ReportFormat {
+    /// Comma-separated values, full precision.
+    Csv,
+    /// Markdown tables.
+    #[value(name = "md")]
+    Markdown,
+    /// A self-contained HTML page.
+    Html,
+}
+
+impl ReportFormat {
+    /// The usual file name extension, without the dot.
+    #[must_use]
+    pub fn extension(self) -> &'static str {
+        match self {
+            Self::Csv => "csv",
+            Self::Markdown => "md",
+            Self::Html => "html",
+        }
+    }
+}
+
 /// The whole report, ready to write in any format.
 #[derive(Clone, Debug, PartialEq)]
 pub struct LayerReport {
@@ -81,6 +105,16 @@ pub struct LayerReport {
 }
 
 impl LayerReport {
+    /// The report as text in `format`.
+    #[must_use]
+    pub fn render(&self, format: ReportFormat) -> String {
+        match format {
+            ReportFormat::Csv => self.to_csv(),
+            ReportFormat::Markdown => self.to_markdown(),
+            ReportFormat::Html => self.to_html(),
+        }
+    }
+
     /// Builds the report; fails if a layer's material has no index at the reference
     /// wavelength.
     pub fn new(d: &Design) -> Result<Self, ExportError> {

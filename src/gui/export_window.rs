@@ -16,47 +16,8 @@ use crate::analysis::{self, Spectrum, Sweep, SweepData};
 use crate::design::{Design, Pol, Quantity};
 use crate::export::{self, plot, report::LayerReport};
 
-/// An image format.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum ImageFormat {
-    /// A PNG bitmap.
-    Png,
-    /// An SVG drawing.
-    Svg,
-}
-
-impl ImageFormat {
-    /// The file name extension, without the dot.
-    #[must_use]
-    pub fn extension(self) -> &'static str {
-        match self {
-            ImageFormat::Png => "png",
-            ImageFormat::Svg => "svg",
-        }
-    }
-
-    /// The format a file name's extension names (case does not matter), if any.
-    #[must_use]
-    pub fn from_path(path: &Path) -> Option<Self> {
-        let ext = path.extension()?.to_str()?.to_ascii_lowercase();
-        match ext.as_str() {
-            "png" => Some(ImageFormat::Png),
-            "svg" => Some(ImageFormat::Svg),
-            _ => None,
-        }
-    }
-}
-
-/// A layer report format.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum ReportFormat {
-    /// Comma-separated values.
-    Csv,
-    /// Markdown tables.
-    Markdown,
-    /// A self-contained HTML page.
-    Html,
-}
+pub use crate::export::plot::ImageFormat;
+pub use crate::export::report::ReportFormat;
 
 /// What the export window writes.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -76,12 +37,9 @@ impl ExportKind {
     #[must_use]
     pub fn extension(self) -> &'static str {
         match self {
-            ExportKind::SpectrumCsv
-            | ExportKind::AngleCsv
-            | ExportKind::Report(ReportFormat::Csv) => "csv",
+            ExportKind::SpectrumCsv | ExportKind::AngleCsv => "csv",
             ExportKind::Image(f) => f.extension(),
-            ExportKind::Report(ReportFormat::Markdown) => "md",
-            ExportKind::Report(ReportFormat::Html) => "html",
+            ExportKind::Report(f) => f.extension(),
         }
     }
 
@@ -281,12 +239,7 @@ fn export_bytes(
             Ok(out)
         }
         ExportKind::Image(_) => {
-            let Some(format) = ImageFormat::from_path(path) else {
-                return Err(format!(
-                    "cannot tell the image format of {}: name the file .png or .svg",
-                    path.display()
-                ));
-            };
+            let format = ImageFormat::for_path(path).map_err(|e| e.to_string())?;
             let mut spec = view_plot(d, view)?;
             for series in &mut spec.series {
                 series.colour = inputs.colour_slot;
@@ -301,12 +254,7 @@ fn export_bytes(
         }
         ExportKind::Report(f) => {
             let r = LayerReport::new(d).map_err(|e| e.to_string())?;
-            Ok(match f {
-                ReportFormat::Csv => r.to_csv(),
-                ReportFormat::Markdown => r.to_markdown(),
-                ReportFormat::Html => r.to_html(),
-            }
-            .into_bytes())
+            Ok(r.render(f).into_bytes())
         }
     }
 }
