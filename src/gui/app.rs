@@ -71,6 +71,8 @@ pub struct App {
     /// Use the window's own file chooser, not the desktop's dialog (set by itself when the
     /// desktop cannot show one).
     pub own_chooser: bool,
+    /// Why the window's own chooser is used, when the desktop could not show its dialog.
+    pub(super) chooser_note: Option<&'static str>,
     pub(super) session: String,
     pub(super) recovery_offer: Vec<(PathBuf, Design)>,
     pub(super) pending: Option<FileAction>,
@@ -131,6 +133,7 @@ impl App {
             session: format!("{session}-{}", std::process::id()),
             recovery_offer: Vec::new(),
             own_chooser: false,
+            chooser_note: None,
             pending: None,
             choosing: None,
             allow_close: false,

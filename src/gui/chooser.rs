@@ -91,6 +91,7 @@ pub struct Chooser {
     entries: Vec<Entry>,
     problem: Option<String>,
     focus_pending: bool,
+    note: Option<&'static str>,
 }
 
 /// What the user did in the chooser.
@@ -126,9 +127,17 @@ impl Chooser {
             entries: Vec::new(),
             problem: None,
             focus_pending: true,
+            note: None,
         };
         c.read_folder();
         c
+    }
+
+    /// The chooser with a line of explanation at its top.
+    #[must_use]
+    pub fn with_note(mut self, note: &'static str) -> Self {
+        self.note = Some(note);
+        self
     }
 
     /// The folder on show.
@@ -237,8 +246,46 @@ impl Chooser {
         outcome
     }
 
+    /// The folder's listing; true when a file was double-clicked (chosen).
+    fn listing_ui(&mut self, ui: &mut egui::Ui) -> bool {
+        let mut chosen = false;
+        let mut go = None;
+        egui::ScrollArea::vertical()
+            .max_height(260.0)
+            .show(ui, |ui| {
+                if self.entries.is_empty() {
+                    ui.label(RichText::new("no matching files here").weak());
+                }
+                for e in &self.entries {
+                    let text = if e.is_dir {
+                        format!("{}/", e.name)
+                    } else {
+                        e.name.clone()
+                    };
+                    let r = ui.selectable_label(!e.is_dir && self.name == e.name, text);
+                    if r.clicked() {
+                        go = Some(e.clone());
+                    }
+                    if r.double_clicked() && !e.is_dir {
+                        chosen = true;
+                    }
+                }
+            });
+        if let Some(e) = go {
+            if e.is_dir {
+                self.go_to(self.folder.join(&e.name));
+            } else {
+                self.name = e.name;
+            }
+        }
+        chosen
+    }
+
     fn contents_ui(&mut self, ui: &mut egui::Ui) -> Option<ChooserOutcome> {
         let mut outcome = None;
+        if let Some(note) = self.note {
+            ui.label(RichText::new(note).weak());
+        }
         ui.horizontal(|ui| {
             let up = self.folder.parent().map(Path::to_path_buf);
             if ui
@@ -264,34 +311,8 @@ impl Chooser {
             ))
             .weak(),
         );
-        let mut go = None;
-        egui::ScrollArea::vertical()
-            .max_height(260.0)
-            .show(ui, |ui| {
-                if self.entries.is_empty() {
-                    ui.label(RichText::new("no matching files here").weak());
-                }
-                for e in &self.entries {
-                    let text = if e.is_dir {
-                        format!("{}/", e.name)
-                    } else {
-                        e.name.clone()
-                    };
-                    let r = ui.selectable_label(!e.is_dir && self.name == e.name, text);
-                    if r.clicked() {
-                        go = Some(e.clone());
-                    }
-                    if r.double_clicked() && !e.is_dir {
-                        outcome = Some(());
-                    }
-                }
-            });
-        if let Some(e) = go {
-            if e.is_dir {
-                self.go_to(self.folder.join(&e.name));
-            } else {
-                self.name = e.name;
-            }
+        if self.listing_ui(ui) {
+            outcome = Some(());
         }
         let mut submit = outcome.is_some();
         ui.horizontal(|ui| {

@@ -134,7 +134,7 @@ impl App {
             self.no_desktop_dialog();
         }
         if self.own_chooser {
-            let chooser = Chooser::new(request);
+            let chooser = self.own_chooser_for(request);
             self.choosing = Some(Choosing::Own { purpose, chooser });
             return;
         }
@@ -150,7 +150,7 @@ impl App {
             Err(e) => {
                 self.status = Some(format!("cannot start the file dialog: {e}"));
                 self.no_desktop_dialog();
-                let chooser = Chooser::new(request);
+                let chooser = self.own_chooser_for(request);
                 self.choosing = Some(Choosing::Own { purpose, chooser });
             }
         }
@@ -160,7 +160,18 @@ impl App {
     fn no_desktop_dialog(&mut self) {
         if !self.own_chooser {
             self.own_chooser = true;
+            self.chooser_note = Some(chooser::NO_DESKTOP_DIALOG);
             self.status = Some(chooser::NO_DESKTOP_DIALOG.to_owned());
+        }
+    }
+
+    /// The window's own chooser for `request`, saying why it is used when the desktop could
+    /// not show its dialog.
+    fn own_chooser_for(&self, request: FileRequest) -> Chooser {
+        let c = Chooser::new(request);
+        match self.chooser_note {
+            Some(note) => c.with_note(note),
+            None => c,
         }
     }
 
@@ -186,14 +197,14 @@ impl App {
                 Some(JobEnd::Done(Some(p))) => self.chosen(ctx, purpose, p),
                 Some(JobEnd::Done(None)) if job.elapsed() < chooser::TOO_FAST_TO_BE_A_PERSON => {
                     self.no_desktop_dialog();
-                    let chooser = Chooser::new(request);
+                    let chooser = self.own_chooser_for(request);
                     self.choosing = Some(Choosing::Own { purpose, chooser });
                 }
                 Some(JobEnd::Done(None) | JobEnd::Cancelled) => {}
                 Some(JobEnd::Failed(e)) => {
                     self.status = Some(format!("the file dialog failed: {e}"));
                     self.no_desktop_dialog();
-                    let chooser = Chooser::new(request);
+                    let chooser = self.own_chooser_for(request);
                     self.choosing = Some(Choosing::Own { purpose, chooser });
                 }
             },
