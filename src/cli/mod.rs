@@ -300,10 +300,10 @@ pub enum Command {
         #[arg(long)]
         wavelength: f64,
         /// First angle, degrees.
-        #[arg(long, default_value_t = 0.0)]
+        #[arg(long, default_value_t = analysis::FULL_ANGLE_FROM_DEG)]
         from: f64,
         /// Last angle, degrees (below 90).
-        #[arg(long, default_value_t = 89.0)]
+        #[arg(long, default_value_t = analysis::FULL_ANGLE_TO_DEG)]
         to: f64,
         /// Angle step, degrees.
         #[arg(long, default_value_t = 1.0)]

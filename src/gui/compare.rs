@@ -45,27 +45,18 @@ pub fn fmt_nm(nm: f64) -> String {
     format!("{s} nm")
 }
 
-/// Which quantity the compare plot shows.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum Quantity {
-    /// Reflectance.
-    R,
-    /// Transmittance.
-    T,
-}
+pub use crate::design::Quantity;
 
 fn curve(r: &SweepResult, q: Quantity) -> &[f64] {
     match q {
         Quantity::R => &r.curves.r,
         Quantity::T => &r.curves.t,
+        Quantity::A => &r.curves.a,
     }
 }
 
 fn curve_name(q: Quantity) -> &'static str {
-    match q {
-        Quantity::R => "R",
-        Quantity::T => "T",
-    }
+    q.symbol()
 }
 
 /// The compare view's settings (window state, not part of any design).
@@ -234,6 +225,7 @@ fn refresh(cache: &mut CompareCache, s: &CompareSettings, picked: &[&Entry<'_>])
         let ys = match s.quantity {
             Quantity::R => &d.r,
             Quantity::T => &d.t,
+            Quantity::A => &d.a,
         };
         Ok(Series {
             name: format!("{} − {}", ea.name, eb.name),
@@ -318,10 +310,7 @@ pub fn compare_ui(
     }
     refresh(cache, s, &picked);
     let h = ui.available_height();
-    let unit = match s.quantity {
-        Quantity::R => "R (%)",
-        Quantity::T => "T (%)",
-    };
+    let unit = format!("{} (%)", s.quantity.symbol());
     ui.allocate_ui(egui::vec2(ui.available_width(), h * 0.4), |ui| {
         Plot::new("compare-plot")
             .legend(Legend::default())
