@@ -416,6 +416,7 @@ pub fn needle(
         }
         // Try a quarter wave of each allowed material at either end; keep the best.
         let mut pick: Option<super::refine::Refined> = None;
+        let mut too_thick = false;
         for &m in &allowed {
             for at in [0, current.len()] {
                 let neighbour = if at == 0 {
@@ -455,9 +456,9 @@ pub fn needle(
                 if r.end == super::lsq::End::Cancelled {
                     cancelled = true;
                 }
-                if r.layers.iter().map(|w| w.nm).sum::<f64>() <= options.max_total_nm
-                    && pick.as_ref().is_none_or(|p| r.merit < p.merit)
-                {
+                if r.layers.iter().map(|w| w.nm).sum::<f64>() > options.max_total_nm {
+                    too_thick = true;
+                } else if pick.as_ref().is_none_or(|p| r.merit < p.merit) {
                     pick = Some(r);
                 }
             }
@@ -466,10 +467,13 @@ pub fn needle(
             break;
         }
         let Some(r) = pick else {
+            // No growth was possible: say which limit stopped it, if one did.
             reason = if current.len() + 1 > options.max_layers {
                 StopReason::LayerLimit
-            } else {
+            } else if too_thick {
                 StopReason::ThicknessLimit
+            } else {
+                StopReason::NoInsertionHelps
             };
             break;
         };
