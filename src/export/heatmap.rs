@@ -20,14 +20,13 @@
 //! # Ok::<(), stackwise::export::ExportError>(())
 //! ```
 
-use std::io::Cursor;
 use std::ops::Range;
 
 use plotters::coord::Shift;
 use plotters::prelude::*;
 
 use super::ExportError;
-use super::plot::{CAUTION_TEXT, FONT, ImageFormat, check_size, font_ready, wrap};
+use super::plot::{CAUTION_TEXT, FONT, png_of, svg_of, wrap};
 use crate::analysis::map::RtMap;
 use crate::design::{Pol, Quantity};
 
@@ -274,20 +273,10 @@ pub fn render_heatmap_png(
     width_px: u32,
     height_px: u32,
 ) -> Result<Vec<u8>, ExportError> {
-    check_size(ImageFormat::Png, width_px, height_px)?;
-    font_ready()?;
-    spec.scale_range()?;
-    let mut buf = vec![255_u8; width_px as usize * height_px as usize * 3];
-    {
-        let root = BitMapBackend::with_buffer(&mut buf, (width_px, height_px)).into_drawing_area();
-        draw(&root, spec, (width_px, height_px))?;
-    }
-    let img = image::RgbImage::from_raw(width_px, height_px, buf)
-        .ok_or_else(|| ExportError::Png("pixel buffer has the wrong size".into()))?;
-    let mut out = Cursor::new(Vec::new());
-    img.write_to(&mut out, image::ImageFormat::Png)
-        .map_err(|e| ExportError::Png(e.to_string()))?;
-    Ok(out.into_inner())
+    png_of(width_px, height_px, |root| {
+        spec.scale_range()?;
+        draw(root, spec, (width_px, height_px))
+    })
 }
 
 /// Draws the heat map as an SVG document.
@@ -296,15 +285,10 @@ pub fn render_heatmap_svg(
     width_px: u32,
     height_px: u32,
 ) -> Result<String, ExportError> {
-    check_size(ImageFormat::Svg, width_px, height_px)?;
-    font_ready()?;
-    spec.scale_range()?;
-    let mut svg = String::new();
-    {
-        let root = SVGBackend::with_string(&mut svg, (width_px, height_px)).into_drawing_area();
-        draw(&root, spec, (width_px, height_px))?;
-    }
-    Ok(svg)
+    svg_of(width_px, height_px, |root| {
+        spec.scale_range()?;
+        draw(root, spec, (width_px, height_px))
+    })
 }
 
 #[cfg(test)]

@@ -393,13 +393,33 @@ fn draw<DB: DrawingBackend>(
 
 /// Draws the plot as a PNG image of `width_px` × `height_px` and returns the file's bytes.
 pub fn render_png(spec: &PlotSpec, width_px: u32, height_px: u32) -> Result<Vec<u8>, ExportError> {
+    png_of(width_px, height_px, |root| {
+        spec.ranges()?;
+        draw(root, spec, (width_px, height_px))
+    })
+}
+
+/// Draws the plot as an SVG document of `width_px` × `height_px`.
+pub fn render_svg(spec: &PlotSpec, width_px: u32, height_px: u32) -> Result<String, ExportError> {
+    svg_of(width_px, height_px, |root| {
+        spec.ranges()?;
+        draw(root, spec, (width_px, height_px))
+    })
+}
+
+/// A PNG file of `width_px` × `height_px` that `paint` draws on (a white canvas); the size
+/// and the font are checked first. Shared by every image the program writes.
+pub(super) fn png_of(
+    width_px: u32,
+    height_px: u32,
+    paint: impl FnOnce(&DrawingArea<BitMapBackend<'_>, Shift>) -> Result<(), ExportError>,
+) -> Result<Vec<u8>, ExportError> {
     check_size(ImageFormat::Png, width_px, height_px)?;
     font_ready()?;
-    spec.ranges()?;
     let mut buf = vec![255_u8; width_px as usize * height_px as usize * 3];
     {
         let root = BitMapBackend::with_buffer(&mut buf, (width_px, height_px)).into_drawing_area();
-        draw(&root, spec, (width_px, height_px))?;
+        paint(&root)?;
     }
     let img = image::RgbImage::from_raw(width_px, height_px, buf)
         .ok_or_else(|| ExportError::Png("pixel buffer has the wrong size".into()))?;
@@ -409,15 +429,19 @@ pub fn render_png(spec: &PlotSpec, width_px: u32, height_px: u32) -> Result<Vec<
     Ok(out.into_inner())
 }
 
-/// Draws the plot as an SVG document of `width_px` × `height_px`.
-pub fn render_svg(spec: &PlotSpec, width_px: u32, height_px: u32) -> Result<String, ExportError> {
+/// An SVG document of `width_px` × `height_px` that `paint` draws on; the size and the font
+/// are checked first.
+pub(super) fn svg_of(
+    width_px: u32,
+    height_px: u32,
+    paint: impl FnOnce(&DrawingArea<SVGBackend<'_>, Shift>) -> Result<(), ExportError>,
+) -> Result<String, ExportError> {
     check_size(ImageFormat::Svg, width_px, height_px)?;
     font_ready()?;
-    spec.ranges()?;
     let mut svg = String::new();
     {
         let root = SVGBackend::with_string(&mut svg, (width_px, height_px)).into_drawing_area();
-        draw(&root, spec, (width_px, height_px))?;
+        paint(&root)?;
     }
     Ok(svg)
 }
