@@ -114,6 +114,8 @@ const R_LO: f64 = 0.41;
 const R_HI: f64 = 0.59;
 const DR: f64 = 0.018;
 const DPHI: f64 = 0.9;
+/// How long the beam-splitter search may run (s).
+const SEARCH_SECONDS: f64 = 120.0;
 /// Degrees count like this many fractions of R in the residuals.
 const PHASE_SCALE: f64 = 0.01;
 
@@ -258,8 +260,10 @@ fn splitter_search() {
     let t0 = Instant::now();
     let mut rng = Rng(0x5851_f42d_4c95_7f2d);
     let mut best: Option<(f64, Vec<usize>, Vec<f64>)> = None;
-    let mut width: f64 = 40.0;
-    'widen: while width <= 400.0 {
+    // Widen the band step by step from a narrow one, each step starting from the best design
+    // so far (continuation) and from a few random ones.
+    let mut width: f64 = 10.0;
+    'widen: while width <= 400.0 && t0.elapsed().as_secs_f64() < SEARCH_SECONDS {
         let (from, to) = (550.0 - width / 2.0, 550.0 + width / 2.0);
         let wl: Vec<f64> = (0..=((to - from) / 5.0).round() as usize)
             .map(|i| from + 5.0 * i as f64)
@@ -269,7 +273,8 @@ fn splitter_search() {
             .iter()
             .map(|(_, p, x)| (p.clone(), x.clone()))
             .collect();
-        for _ in 0..40 {
+        let randoms = if best.is_some() { 12 } else { 60 };
+        for _ in 0..randoms {
             let n = 8 + (rng.next() * 14.0) as usize;
             let mut pattern = Vec::with_capacity(n);
             for _ in 0..n {
@@ -312,7 +317,7 @@ fn splitter_search() {
                     n
                 );
                 best = Some((width, pattern, s.x));
-                width += 20.0;
+                width += 10.0;
                 continue 'widen;
             }
         }
@@ -330,7 +335,7 @@ fn splitter_search() {
             }
             println!();
         }
-        None => println!("  no compliant band of 40 nm or more found"),
+        None => println!("  no compliant band of 10 nm or more found"),
     }
 }
 

@@ -232,6 +232,36 @@ fn needle_insertion_never_makes_the_merit_worse() {
 }
 
 #[test]
+fn needle_leaves_a_two_layer_local_minimum() {
+    // The shipped AR start (TiO2 / SiO2 on N-BK7, 420–680 nm) refines to a thin TiO2 under a
+    // thick SiO2, where no needle of either material lowers the merit; adding layers on top
+    // (gradual evolution) must carry the search on to a clearly better design.
+    let mut d = file::load(&common::here("designs/visible-ar-start.ron")).expect("shipped design");
+    for t in &mut d.targets {
+        t.step_nm = 20.0;
+    }
+    let opts = Options {
+        materials: vec!["TiO2".into(), "SiO2".into()],
+        max_layers: 6,
+        ..Options::default()
+    };
+    let refined = refine(&d, &opts, go).expect("valid test input");
+    let out = needle(&d, &opts, go).expect("valid test input");
+    assert!(
+        out.merit < 0.25 * refined.merit,
+        "needles and growth get past the local minimum: {} → {} with {} layers ({})",
+        refined.merit,
+        out.merit,
+        out.design.layers.len(),
+        out.reason
+    );
+    assert!(
+        out.design.layers.iter().all(|l| l.nm.get() >= 5.0 - 1e-12),
+        "minimum thickness kept"
+    );
+}
+
+#[test]
 fn cancel_keeps_the_best_design_so_far() {
     let mut d = base(&[("H", 20.0), ("L", 30.0), ("H", 80.0), ("L", 70.0)]);
     d.targets = vec![target(TargetKind::AtMost, 0.0, 420.0, 680.0)];

@@ -11,14 +11,18 @@
 
 use std::ops::ControlFlow;
 
+use super::lsq::End;
 use super::refine::{
-    Work, check_free, check_options, refine_layers, stop_reason, to_design, work_layers,
+    Refined, Work, check_free, check_options, refine_layers, stop_reason, to_design, work_layers,
 };
 use super::{Evaluator, OptimizeError, Options, Outcome, Progress, Stage, StopReason};
 use crate::design::Design;
 
 /// Thickness given to a new needle before refinement grows it (nm).
 const NEEDLE_START_NM: f64 = 0.5;
+
+/// Layers that refinement shrank below this are gone (nm).
+const VANISHED_NM: f64 = 0.01;
 
 /// Trial insertions tried per step, best needle values first.
 const TRIALS_PER_STEP: usize = 4;
@@ -44,6 +48,7 @@ fn candidates(
     ev: &Evaluator,
     layers: &[Work],
     allowed: &[usize],
+    sub_mat: Option<usize>,
     step_nm: f64,
     min_nm: f64,
 ) -> Vec<Candidate> {
@@ -61,10 +66,12 @@ fn candidates(
         }
     };
     for (k, w) in layers.iter().enumerate() {
+        // No needle of a neighbour's material at a boundary (it only thickens the neighbour),
+        // nor of the substrate's own material on the substrate (it is more substrate).
         let below: Vec<usize> = if k > 0 {
             vec![layers[k - 1].mat, w.mat]
         } else {
-            vec![w.mat]
+            sub_mat.into_iter().chain([w.mat]).collect()
         };
         needles(
             &mut aug,
@@ -152,13 +159,59 @@ fn insert(layers: &[Work], place: Place, mat: usize) -> Vec<Work> {
     out
 }
 
-/// Drops unlocked layers thinner than `min_nm` and merges unlocked neighbours of one material.
-fn tidy(layers: &[Work], min_nm: f64) -> Vec<Work> {
+/// Drops unlocked layers thinner than `min_nm` and merges unlocked neighbours of one material;
+/// an unlocked layer of the substrate's own material (`sub_mat`) next to the substrate is
+/// optically part of it and is dropped too.
+fn tidy(layers: &[Work], min_nm: f64, sub_mat: Option<usize>) -> Vec<Work> {
     let mut out: Vec<Work> = Vec::with_capacity(layers.len());
     for w in layers.iter().filter(|w| w.locked || w.nm >= min_nm) {
         match out.last_mut() {
             Some(last) if last.mat == w.mat && !last.locked && !w.locked => last.nm += w.nm,
+            None if Some(w.mat) == sub_mat && !w.locked => {}
             _ => out.push(*w),
+        }
+    }
+    out
+}
+
+/// The stacks that gradual evolution tries when no needle helps: a quarter wave (`qw_nm`) of
+/// one allowed material, or two quarter waves of two different ones, added at the substrate
+/// side or on top — never next to a layer (or the substrate) of the same material.
+fn grown_stacks(
+    layers: &[Work],
+    allowed: &[usize],
+    sub_mat: Option<usize>,
+    qw_nm: impl Fn(usize) -> f64,
+) -> Vec<Vec<Work>> {
+    let new = |mat| Work {
+        mat,
+        nm: qw_nm(mat),
+        locked: false,
+    };
+    let below = layers.first().map(|w| w.mat);
+    let above = layers.last().map(|w| w.mat);
+    let mut out = Vec::new();
+    // Runs of one or two new layers, listed from the substrate side; none may touch a layer of
+    // its own material.
+    let mut runs: Vec<Vec<usize>> = allowed.iter().map(|&m| vec![m]).collect();
+    for &a in allowed {
+        for &b in allowed {
+            if a != b {
+                runs.push(vec![a, b]);
+            }
+        }
+    }
+    for run in &runs {
+        let (first, last) = (run[0], run[run.len() - 1]);
+        if Some(first) != sub_mat && Some(last) != below {
+            let mut g: Vec<Work> = run.iter().map(|&m| new(m)).collect();
+            g.extend_from_slice(layers);
+            out.push(g);
+        }
+        if Some(first) != above && !layers.is_empty() {
+            let mut g = layers.to_vec();
+            g.extend(run.iter().map(|&m| new(m)));
+            out.push(g);
         }
     }
     out
@@ -174,14 +227,13 @@ fn report_best(
     design: &Design,
     best: &[Work],
     merit: f64,
-    insertions: usize,
-    iterations: usize,
+    counts: &Counts,
 ) -> bool {
     let shown = to_design(ev, design, best);
     on_progress(&Progress {
         stage: Stage::Needle,
-        iteration: iterations,
-        insertions,
+        iteration: counts.iterations,
+        insertions: counts.insertions,
         merit,
         layers: best.len(),
         best: &shown,
@@ -199,7 +251,6 @@ struct Ctx<'a> {
 impl Ctx<'_> {
     /// Refines `layers`; progress shows the accepted design `best` (merit `best_merit`), or the
     /// refinement's own best while nothing has been accepted yet.
-    #[allow(clippy::too_many_arguments)]
     fn refine(
         &self,
         on_progress: &mut dyn FnMut(&Progress<'_>) -> ControlFlow<()>,
@@ -207,17 +258,16 @@ impl Ctx<'_> {
         min_nm: f64,
         best: &[Work],
         best_merit: f64,
-        insertions: usize,
-        done: usize,
-    ) -> super::refine::Refined {
+        counts: &Counts,
+    ) -> Refined {
         let shown = to_design(self.ev, self.design, best);
         let mut step = |it: usize, m: f64, trial: &[Work]| {
             let own = (!best_merit.is_finite()).then(|| to_design(self.ev, self.design, trial));
             let d = own.as_ref().unwrap_or(&shown);
             on_progress(&Progress {
                 stage: Stage::Refine,
-                iteration: done + it,
-                insertions,
+                iteration: counts.iterations + it,
+                insertions: counts.insertions,
                 merit: if own.is_some() { m } else { best_merit },
                 layers: d.layers.len(),
                 best: d,
@@ -225,6 +275,56 @@ impl Ctx<'_> {
         };
         refine_layers(self.ev, layers, min_nm, self.max_iterations, &mut step)
     }
+
+    /// The best design that keeps every unlocked layer at `min_nm` or more, made from
+    /// `layers`: the thinner layers dropped (and neighbours merged), or raised to the minimum,
+    /// each refined; the better of the two.
+    #[allow(clippy::too_many_arguments)]
+    fn feasible(
+        &self,
+        on_progress: &mut dyn FnMut(&Progress<'_>) -> ControlFlow<()>,
+        layers: &[Work],
+        min_nm: f64,
+        sub_mat: Option<usize>,
+        best: &[Work],
+        best_merit: f64,
+        counts: &mut Counts,
+    ) -> Refined {
+        let dropped = tidy(layers, min_nm, sub_mat);
+        let mut out = self.refine(on_progress, layers, min_nm, best, best_merit, counts);
+        counts.add(&out);
+        if out.end != End::Cancelled
+            && dropped.len() < layers.len()
+            && dropped.iter().any(|w| !w.locked)
+        {
+            let r = self.refine(on_progress, &dropped, min_nm, best, best_merit, counts);
+            counts.add(&r);
+            if r.merit < out.merit || r.end == End::Cancelled {
+                out = r;
+            }
+        }
+        out
+    }
+}
+
+/// Work done so far in a run.
+#[derive(Debug, Default)]
+struct Counts {
+    iterations: usize,
+    evaluations: usize,
+    insertions: usize,
+}
+
+impl Counts {
+    fn add(&mut self, r: &Refined) {
+        self.iterations += r.iterations;
+        self.evaluations += r.evaluations;
+    }
+}
+
+/// The (material, thickness) pairs the evaluator takes.
+fn pairs(layers: &[Work]) -> Vec<(usize, f64)> {
+    layers.iter().map(|w| (w.mat, w.nm)).collect()
 }
 
 /// Needle optimisation of `design`: refine, then repeatedly insert a thin layer of one of
@@ -278,9 +378,7 @@ pub fn needle(
     check_free(&start, options.min_nm)?;
     let start_merit = ev.merit(&ev.layers_of(design));
 
-    let mut iterations = 0;
-    let mut evaluations = 0;
-    let mut insertions = 0;
+    let sub_mat = ev.palette_index(&design.substrate);
     let mut current = start;
     let mut merit = f64::INFINITY;
     let mut reason;
@@ -291,11 +389,21 @@ pub fn needle(
         design,
         max_iterations: options.max_iterations,
     };
-    let first = ctx.refine(on_progress, &current, options.min_nm, &current, merit, 0, 0);
-    iterations += first.iterations;
-    evaluations += first.evaluations;
+    let mut counts = Counts::default();
+    let first = ctx.refine(
+        on_progress,
+        &current,
+        options.min_nm,
+        &current,
+        merit,
+        &counts,
+    );
+    counts.add(&first);
     current = first.layers;
     merit = first.merit;
+    // The search runs on layers free to shrink to nothing (a needle must be free to grow from
+    // zero); `best` is the best design that respects the minimum thickness, which is what the
+    // run returns, so the result is never worse than the refined start.
     let mut best = current.clone();
     let mut best_merit = merit;
     let mut growths = 0;
@@ -304,11 +412,16 @@ pub fn needle(
         cancelled = true;
     }
     while !cancelled {
-        if merit == 0.0 {
+        if best_merit == 0.0 {
             reason = StopReason::TargetsMet;
             break;
         }
-        if insertions >= options.max_insertions {
+        if merit == 0.0 {
+            // Nothing left to lower; only layers below the minimum meet every target.
+            reason = StopReason::MetOnlyBelowMinimum;
+            break;
+        }
+        if counts.insertions >= options.max_insertions {
             reason = StopReason::MaxIterations;
             break;
         }
@@ -320,12 +433,13 @@ pub fn needle(
             &ev,
             &current,
             &allowed,
+            sub_mat,
             options.needle_step_nm,
             options.min_nm,
         );
         reason = StopReason::NoInsertionHelps;
         let mut tried: Vec<Place> = Vec::new();
-        let mut accepted = false;
+        let mut accepted = None;
         for c in found {
             if tried.len() >= TRIALS_PER_STEP {
                 break;
@@ -339,121 +453,65 @@ pub fn needle(
                 reason = StopReason::LayerLimit;
                 continue;
             }
-            // Let every layer shrink to nothing, drop what vanished, refine within bounds.
-            let loose = ctx.refine(
-                on_progress,
-                &trial,
-                0.0,
-                &current,
-                merit,
-                insertions,
-                iterations,
-            );
-            iterations += loose.iterations;
-            evaluations += loose.evaluations;
+            // Every layer may shrink to nothing; what vanished is dropped.
+            let loose = ctx.refine(on_progress, &trial, 0.0, &best, best_merit, &counts);
+            counts.add(&loose);
             if loose.end == super::lsq::End::Cancelled {
                 cancelled = true;
                 break;
             }
-            let tidied = tidy(&loose.layers, options.min_nm);
+            let tidied = tidy(&loose.layers, VANISHED_NM, sub_mat);
             if tidied.is_empty() || tidied.iter().all(|w| w.locked) {
                 continue;
             }
-            let r = ctx.refine(
-                on_progress,
-                &tidied,
-                options.min_nm,
-                &current,
-                merit,
-                insertions,
-                iterations,
-            );
-            iterations += r.iterations;
-            evaluations += r.evaluations;
-            let total: f64 = r.layers.iter().map(|w| w.nm).sum();
-            if r.merit < merit * (1.0 - 1e-9) && r.layers.len() <= options.max_layers {
-                if total > options.max_total_nm {
+            let m = ev.merit(&pairs(&tidied));
+            if m < merit * (1.0 - 1e-9) && tidied.len() <= options.max_layers {
+                if tidied.iter().map(|w| w.nm).sum::<f64>() > options.max_total_nm {
                     reason = StopReason::ThicknessLimit;
-                    if r.end == super::lsq::End::Cancelled {
-                        cancelled = true;
-                        break;
-                    }
                     continue;
                 }
-                current = r.layers;
-                merit = r.merit;
-                insertions += 1;
-                accepted = true;
-                if merit < best_merit {
-                    best.clone_from(&current);
-                    best_merit = merit;
-                    growths = 0;
-                    cancelled |= report_best(
-                        on_progress,
-                        &ev,
-                        design,
-                        &best,
-                        best_merit,
-                        insertions,
-                        iterations,
-                    );
-                }
-                break;
-            }
-            if r.end == super::lsq::End::Cancelled {
-                cancelled = true;
+                accepted = Some((tidied, m));
                 break;
             }
         }
-        if accepted || cancelled {
-            continue;
-        }
-        // Gradual evolution: when no needle helps, thicken the design with a quarter wave
-        // (at the reference wavelength) of another allowed material on top and go on; the best
-        // design seen is what is returned, so this never makes the result worse.
-        if growths >= MAX_GROWTHS {
+        if cancelled {
             break;
         }
-        // Try a quarter wave of each allowed material at either end; keep the best.
-        let mut pick: Option<super::refine::Refined> = None;
-        let mut too_thick = false;
-        for &m in &allowed {
-            for at in [0, current.len()] {
-                let neighbour = if at == 0 {
-                    current.first()
-                } else {
-                    current.last()
-                };
-                if neighbour.is_some_and(|w| w.mat == m) {
-                    continue;
-                }
+        if let Some((layers, m)) = accepted {
+            current = layers;
+            merit = m;
+            counts.insertions += 1;
+        } else {
+            // Gradual evolution: when no needle helps, thicken the design with a quarter wave
+            // (at the reference wavelength) of another allowed material at either end and go
+            // on from the best of these; the best design seen is what is returned, so this
+            // never makes the result worse.
+            if growths >= MAX_GROWTHS {
+                break;
+            }
+            let mut pick: Option<Refined> = None;
+            let mut too_thick = false;
+            let qw_nm = |m: usize| {
                 let n = ev.palette()[m]
                     .index_at(design.reference_nm)
                     .map_or(1.5, |n| n.re);
-                let mut grown = current.clone();
-                grown.insert(
-                    at,
-                    Work {
-                        mat: m,
-                        nm: design.reference_nm / (4.0 * n),
-                        locked: false,
-                    },
-                );
-                if grown.len() > options.max_layers {
+                design.reference_nm / (4.0 * n)
+            };
+            for grown in grown_stacks(&current, &allowed, sub_mat, qw_nm) {
+                if grown.len() > options.max_layers || cancelled {
                     continue;
                 }
+                // The new layers keep at least the minimum, so they are not simply undone.
                 let r = ctx.refine(
                     on_progress,
                     &grown,
                     options.min_nm,
                     &best,
                     best_merit,
-                    insertions,
-                    iterations,
+                    &counts,
                 );
-                iterations += r.iterations;
-                evaluations += r.evaluations;
-                if r.end == super::lsq::End::Cancelled {
+                counts.add(&r);
+                if r.end == End::Cancelled {
                     cancelled = true;
                 }
                 if r.layers.iter().map(|w| w.nm).sum::<f64>() > options.max_total_nm {
@@ -462,37 +520,43 @@ pub fn needle(
                     pick = Some(r);
                 }
             }
-        }
-        if cancelled {
-            break;
-        }
-        let Some(r) = pick else {
-            // No growth was possible: say which limit stopped it, if one did.
-            reason = if current.len() + 1 > options.max_layers {
-                StopReason::LayerLimit
-            } else if too_thick {
-                StopReason::ThicknessLimit
-            } else {
-                StopReason::NoInsertionHelps
+            if cancelled {
+                break;
+            }
+            let Some(r) = pick else {
+                // No growth was possible: say which limit stopped it, if one did.
+                reason = if current.len() + 1 >= options.max_layers {
+                    StopReason::LayerLimit
+                } else if too_thick {
+                    StopReason::ThicknessLimit
+                } else {
+                    StopReason::NoInsertionHelps
+                };
+                break;
             };
-            break;
-        };
-        growths += 1;
-        current = r.layers;
-        merit = r.merit;
-        if merit < best_merit {
-            best.clone_from(&current);
-            best_merit = merit;
+            growths += 1;
+            merit = ev.merit(&pairs(&r.layers));
+            current = r.layers;
+        }
+        // The design the chamber could make from here: thin layers dropped or raised to the
+        // minimum, whichever ends better after refinement.
+        let f = ctx.feasible(
+            on_progress,
+            &current,
+            options.min_nm,
+            sub_mat,
+            &best,
+            best_merit,
+            &mut counts,
+        );
+        if f.end == super::lsq::End::Cancelled {
+            cancelled = true;
+        }
+        if f.merit < best_merit * (1.0 - 1e-9) && !f.layers.is_empty() {
+            best = f.layers;
+            best_merit = f.merit;
             growths = 0;
-            cancelled |= report_best(
-                on_progress,
-                &ev,
-                design,
-                &best,
-                best_merit,
-                insertions,
-                iterations,
-            );
+            cancelled |= report_best(on_progress, &ev, design, &best, best_merit, &counts);
         }
     }
     if cancelled {
@@ -503,9 +567,9 @@ pub fn needle(
         merit: best_merit,
         start_merit,
         reason,
-        iterations,
-        evaluations,
-        insertions,
+        iterations: counts.iterations,
+        evaluations: counts.evaluations,
+        insertions: counts.insertions,
     })
 }
 
@@ -520,12 +584,51 @@ mod tests {
             nm,
             locked: false,
         };
-        let out = tidy(&[w(0, 50.0), w(1, 2.0), w(0, 30.0), w(1, 40.0)], 5.0);
+        let out = tidy(&[w(0, 50.0), w(1, 2.0), w(0, 30.0), w(1, 40.0)], 5.0, None);
         assert_eq!(out, vec![w(0, 80.0), w(1, 40.0)], "dropped and merged");
         let mut locked = w(1, 2.0);
         locked.locked = true;
-        let out = tidy(&[w(0, 50.0), locked, w(0, 30.0)], 5.0);
+        let out = tidy(&[w(0, 50.0), locked, w(0, 30.0)], 5.0, None);
         assert_eq!(out.len(), 3, "a locked layer is never dropped");
+        let out = tidy(&[w(2, 80.0), w(0, 50.0), w(2, 30.0)], 5.0, Some(2));
+        assert_eq!(
+            out,
+            vec![w(0, 50.0), w(2, 30.0)],
+            "a layer of the substrate's material on the substrate is dropped, not one above"
+        );
+    }
+
+    #[test]
+    fn growth_never_touches_its_own_material() {
+        let w = |mat, nm| Work {
+            mat,
+            nm,
+            locked: false,
+        };
+        // Materials 0 and 1 allowed; the substrate is material 1; the stack is 0 | 1.
+        let stacks = grown_stacks(&[w(0, 10.0), w(1, 90.0)], &[0, 1], Some(1), |m| {
+            [60.0, 95.0][m]
+        });
+        let as_mats = |s: &Vec<Work>| s.iter().map(|w| w.mat).collect::<Vec<_>>();
+        let mats: Vec<Vec<usize>> = stacks.iter().map(as_mats).collect();
+        // Below, a run must not start with the substrate's material (1) nor end with the first
+        // layer's (0); on top it must not start with the top layer's (1). What is left: 0 on
+        // top, (0, 1) below and (0, 1) on top.
+        assert_eq!(
+            mats,
+            vec![vec![0, 1, 0], vec![0, 1, 0, 1], vec![0, 1, 0, 1]],
+            "the allowed growths"
+        );
+        assert!(
+            stacks
+                .iter()
+                .all(|s| s.windows(2).all(|p| p[0].mat != p[1].mat)),
+            "no two neighbours of one material"
+        );
+        assert!(
+            (stacks[0][2].nm - 60.0).abs() < 1e-12,
+            "a quarter wave of the new material"
+        );
     }
 
     #[test]
