@@ -9,7 +9,8 @@
 //!     |Rs − Rp| ≤ 2 %, 40 % ≤ Rs, Rp ≤ 60 %, |φ(rs) − φ(rp)| ≤ 1° and |φ(ts) − φ(tp)| ≤ 1°
 //!     over a band centred at 550 nm, at most three materials from {1.38 … 2.35}, every layer
 //!     ≥ 5 nm: the widest compliant band found, by the generic least-squares engine on our own
-//!     residuals (phase targets are not yet a target kind).
+//!     residuals (phase targets are not yet a target kind), widening the band in 4 nm steps
+//!     from 10 nm, each from the best design so far and from random starts, for at most 90 s.
 //!
 //! Prints merit versus time and layer count. Problem statements: physics-checks §3 of the
 //! project's reference notes.
@@ -74,6 +75,8 @@ fn ar_design(
     band: (f64, f64, f64),
 ) -> Design {
     let mut d = Design::new_empty("AR benchmark");
+    // The band's centre: quarter waves added by gradual evolution are quarter waves here.
+    d.reference_nm = 0.5 * (band.0 + band.1);
     d.substrate = sub.0.into();
     d.materials = vec![
         constant(sub.0, sub.1),
@@ -115,7 +118,7 @@ const R_HI: f64 = 0.59;
 const DR: f64 = 0.018;
 const DPHI: f64 = 0.9;
 /// How long the beam-splitter search may run (s).
-const SEARCH_SECONDS: f64 = 120.0;
+const SEARCH_SECONDS: f64 = 90.0;
 /// Degrees count like this many fractions of R in the residuals.
 const PHASE_SCALE: f64 = 0.01;
 
@@ -263,17 +266,22 @@ fn splitter_search() {
     // Widen the band step by step from a narrow one, each step starting from the best design
     // so far (continuation) and from a few random ones.
     let mut width: f64 = 10.0;
+    // The smallest residual norm reached at the narrowest band (0 = compliant).
+    let mut closest = f64::INFINITY;
     'widen: while width <= 400.0 && t0.elapsed().as_secs_f64() < SEARCH_SECONDS {
         let (from, to) = (550.0 - width / 2.0, 550.0 + width / 2.0);
-        let wl: Vec<f64> = (0..=((to - from) / 5.0).round() as usize)
-            .map(|i| from + 5.0 * i as f64)
+        // Sample points at most 5 nm apart, both band edges included.
+        let gaps = (width / 5.0).ceil() as usize;
+        let wl: Vec<f64> = (0..=gaps)
+            .map(|i| from + width * i as f64 / gaps as f64)
             .collect();
         // Start from the best design so far, then from random ones.
         let mut starts: Vec<(Vec<usize>, Vec<f64>)> = best
             .iter()
             .map(|(_, p, x)| (p.clone(), x.clone()))
             .collect();
-        let randoms = if best.is_some() { 12 } else { 60 };
+        // Random starts go on until the band is met or the time allowed is spent.
+        let randoms = 5000;
         for _ in 0..randoms {
             let n = 8 + (rng.next() * 14.0) as usize;
             let mut pattern = Vec::with_capacity(n);
@@ -288,6 +296,9 @@ fn splitter_search() {
             starts.push((pattern, x));
         }
         for (pattern, x0) in starts {
+            if t0.elapsed().as_secs_f64() > SEARCH_SECONDS {
+                break 'widen;
+            }
             let n = x0.len();
             let mut p = Splitter {
                 wl: wl.clone(),
@@ -302,11 +313,12 @@ fn splitter_search() {
                 &vec![5.0; n],
                 &vec![400.0; n],
                 &lsq::Settings {
-                    max_iterations: 150,
+                    max_iterations: 400,
                     tolerance: 1e-10,
                 },
                 &mut |_| ControlFlow::Continue(()),
             );
+            closest = closest.min(s.norm);
             if s.norm < 1e-12 && p.complies(&s.x, from, to) {
                 println!(
                     "  {:>8.2} s  band {:.0}–{:.0} nm ({:.0} nm wide) met with {} layers",
@@ -317,7 +329,7 @@ fn splitter_search() {
                     n
                 );
                 best = Some((width, pattern, s.x));
-                width += 10.0;
+                width += 4.0;
                 continue 'widen;
             }
         }
@@ -335,7 +347,10 @@ fn splitter_search() {
             }
             println!();
         }
-        None => println!("  no compliant band of 10 nm or more found"),
+        None => println!(
+            "  no compliant band of 10 nm or more found in {:.0} s (smallest residual norm {closest:.4}; 0 would comply)",
+            t0.elapsed().as_secs_f64()
+        ),
     }
 }
 

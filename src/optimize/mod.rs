@@ -78,9 +78,6 @@ pub enum StopReason {
     LayerLimit,
     /// Needle insertion: the design reached the total-thickness limit.
     ThicknessLimit,
-    /// Needle insertion: every target is met by a design with layers thinner than the minimum
-    /// thickness; the result is the best design without them.
-    MetOnlyBelowMinimum,
 }
 
 impl std::fmt::Display for StopReason {
@@ -93,9 +90,6 @@ impl std::fmt::Display for StopReason {
             StopReason::NoInsertionHelps => "no further layer insertion lowers the merit",
             StopReason::LayerLimit => "layer-count limit reached",
             StopReason::ThicknessLimit => "total-thickness limit reached",
-            StopReason::MetOnlyBelowMinimum => {
-                "every target is met only with layers thinner than the minimum thickness"
-            }
         })
     }
 }

@@ -401,9 +401,8 @@ pub fn needle(
     counts.add(&first);
     current = first.layers;
     merit = first.merit;
-    // The search runs on layers free to shrink to nothing (a needle must be free to grow from
-    // zero); `best` is the best design that respects the minimum thickness, which is what the
-    // run returns, so the result is never worse than the refined start.
+    // `current` always respects the minimum thickness; gradual evolution may make it worse
+    // for a while, so `best` is what the run returns — never worse than the refined start.
     let mut best = current.clone();
     let mut best_merit = merit;
     let mut growths = 0;
@@ -414,11 +413,6 @@ pub fn needle(
     while !cancelled {
         if best_merit == 0.0 {
             reason = StopReason::TargetsMet;
-            break;
-        }
-        if merit == 0.0 {
-            // Nothing left to lower; only layers below the minimum meet every target.
-            reason = StopReason::MetOnlyBelowMinimum;
             break;
         }
         if counts.insertions >= options.max_insertions {
@@ -453,10 +447,11 @@ pub fn needle(
                 reason = StopReason::LayerLimit;
                 continue;
             }
-            // Every layer may shrink to nothing; what vanished is dropped.
+            // Every layer may shrink to nothing (the needle grows from zero); what vanished is
+            // dropped; then the design a chamber could make from it.
             let loose = ctx.refine(on_progress, &trial, 0.0, &best, best_merit, &counts);
             counts.add(&loose);
-            if loose.end == super::lsq::End::Cancelled {
+            if loose.end == End::Cancelled {
                 cancelled = true;
                 break;
             }
@@ -464,13 +459,25 @@ pub fn needle(
             if tidied.is_empty() || tidied.iter().all(|w| w.locked) {
                 continue;
             }
-            let m = ev.merit(&pairs(&tidied));
-            if m < merit * (1.0 - 1e-9) && tidied.len() <= options.max_layers {
-                if tidied.iter().map(|w| w.nm).sum::<f64>() > options.max_total_nm {
+            let f = ctx.feasible(
+                on_progress,
+                &tidied,
+                options.min_nm,
+                sub_mat,
+                &best,
+                best_merit,
+                &mut counts,
+            );
+            if f.end == End::Cancelled {
+                cancelled = true;
+                break;
+            }
+            if f.merit < merit * (1.0 - 1e-9) && f.layers.len() <= options.max_layers {
+                if f.layers.iter().map(|w| w.nm).sum::<f64>() > options.max_total_nm {
                     reason = StopReason::ThicknessLimit;
                     continue;
                 }
-                accepted = Some((tidied, m));
+                accepted = Some((f.layers, f.merit));
                 break;
             }
         }
@@ -538,23 +545,9 @@ pub fn needle(
             merit = ev.merit(&pairs(&r.layers));
             current = r.layers;
         }
-        // The design the chamber could make from here: thin layers dropped or raised to the
-        // minimum, whichever ends better after refinement.
-        let f = ctx.feasible(
-            on_progress,
-            &current,
-            options.min_nm,
-            sub_mat,
-            &best,
-            best_merit,
-            &mut counts,
-        );
-        if f.end == super::lsq::End::Cancelled {
-            cancelled = true;
-        }
-        if f.merit < best_merit * (1.0 - 1e-9) && !f.layers.is_empty() {
-            best = f.layers;
-            best_merit = f.merit;
+        if merit < best_merit * (1.0 - 1e-9) {
+            best.clone_from(&current);
+            best_merit = merit;
             growths = 0;
             cancelled |= report_best(on_progress, &ev, design, &best, best_merit, &counts);
         }
