@@ -19,6 +19,7 @@ use stackwise::cautions;
 use stackwise::design::{Design, Pol, Quantity};
 use stackwise::gui::views::{AnalysisView, admittance, colour, field, map};
 use stackwise::gui::{App, CentralView, Edit};
+use stackwise::material::{Material, Model};
 use stackwise::optics::Side;
 use stackwise::optics::field::Polarisation;
 
@@ -57,6 +58,28 @@ fn thicken_top_layer(h: &mut Harness<'_, App>) {
     assert!(
         h.state_mut().apply(Edit::SetThickness { layer: top, nm }),
         "edited"
+    );
+    h.run();
+}
+
+/// Makes the outermost layer a material whose formula gives no valid index below about
+/// 365 nm (n = 1.5 − 0.2 / λ², λ in µm, crosses zero at 365 nm): the library refuses such a
+/// wavelength with a message naming the material and the wavelength.
+fn fading_top_layer(h: &mut Harness<'_, App>) {
+    let m = Material::user(
+        "Fades",
+        Model::Cauchy {
+            a: 1.5,
+            b: -0.2,
+            c: 0.0,
+        },
+    );
+    assert!(h.state_mut().apply(Edit::AddMaterial(m)), "material added");
+    let top = design(h).layers.len() - 1;
+    let name = "Fades".to_owned();
+    assert!(
+        h.state_mut().apply(Edit::SetMaterial { layer: top, name }),
+        "used"
     );
     h.run();
 }
@@ -157,22 +180,38 @@ fn field_view_shows_the_library_peaks_the_caution_and_errors() {
     assert_eq!(h.state().analysis.field.pol, Polarisation::P);
     check(&h);
 
-    // Bad input: the library's message, no panic.
-    for (wl, aoi) in [(0.0, 0.0), (550.0, 90.0)] {
-        h.state_mut().analysis.field.wavelength_nm = wl;
-        h.state_mut().analysis.field.aoi_deg = aoi;
-        h.run();
-        let e = field_profile(
-            &design(&h).resolve().unwrap(),
-            wl,
-            aoi,
-            Polarisation::P,
-            1.0,
-        )
-        .unwrap_err()
-        .to_string();
-        assert!(shows(&h, &format!("cannot compute: {e}")), "{e}");
-    }
+    // An angle of 90° or more cannot be entered: the field holds it below.
+    h.state_mut().analysis.field.aoi_deg = 95.0;
+    h.run();
+    assert!(h.state().analysis.field.aoi_deg < 90.0, "held below 90°");
+    assert!(
+        h.state().analysis.field.result().unwrap().is_ok(),
+        "computed"
+    );
+    // A wavelength where a material has no valid index: the library's message, no panic.
+    h.state_mut().analysis.field.aoi_deg = 0.0;
+    fading_top_layer(&mut h);
+    h.state_mut().analysis.field.wavelength_nm = 300.0;
+    h.run();
+    let e = field_profile(
+        &design(&h).resolve().unwrap(),
+        300.0,
+        0.0,
+        Polarisation::P,
+        1.0,
+    )
+    .unwrap_err()
+    .to_string();
+    assert!(e.contains("Fades") && e.contains("300"), "{e}");
+    assert!(shows(&h, &format!("cannot compute: {e}")), "{e}");
+    assert!(
+        h.state_mut().apply(stackwise::gui::Command::Undo),
+        "material back"
+    );
+    assert!(
+        h.state_mut().apply(stackwise::gui::Command::Undo),
+        "material list back"
+    );
     // A design with no layers has no field profile to show.
     h.state_mut().analysis.field.wavelength_nm = 550.0;
     h.state_mut().analysis.field.aoi_deg = 0.0;
@@ -237,10 +276,19 @@ fn admittance_view_ends_where_the_library_does() {
         "{after}"
     );
 
-    h.state_mut().analysis.admittance.wavelength_nm = -1.0;
+    fading_top_layer(&mut h);
+    h.state_mut().analysis.admittance.wavelength_nm = 300.0;
     h.run();
-    assert!(shows_part(&h, "cannot compute"), "bad wavelength refused");
-    assert!(shows_part(&h, "-1"), "naming it");
+    let e = admittance_locus(
+        &design(&h).resolve().unwrap(),
+        300.0,
+        0.0,
+        Polarisation::S,
+        1.0,
+    )
+    .unwrap_err()
+    .to_string();
+    assert!(shows(&h, &format!("cannot compute: {e}")), "{e}");
 }
 
 #[test]
@@ -278,9 +326,18 @@ fn colour_view_table_is_the_library_colour() {
     let edited = check(&h, Illuminant::A, Observer::Cie1964TenDeg);
     assert_ne!(edited.reflected.xyz, a.reflected.xyz, "recomputed");
 
-    h.state_mut().analysis.colour.aoi_deg = 95.0;
-    h.run();
-    assert!(shows_part(&h, "cannot compute"), "95° refused");
+    // The colour sums start at 360 nm, where the fading material has no valid index.
+    fading_top_layer(&mut h);
+    let e = design_colour(
+        &design(&h).resolve().unwrap(),
+        0.0,
+        Illuminant::A,
+        Observer::Cie1964TenDeg,
+    )
+    .unwrap_err()
+    .to_string();
+    assert!(e.contains("Fades"), "{e}");
+    assert!(shows(&h, &format!("cannot compute: {e}")), "{e}");
 }
 
 #[test]
@@ -313,7 +370,10 @@ fn map_view_is_the_library_map_and_a_large_one_can_be_cancelled() {
     let shown = h.state().analysis.map.result().unwrap().clone().unwrap();
     assert_eq!(shown, library(&h), "the same call, the same map");
     assert_eq!(shown.values.len(), 11 * 5, "11 wavelengths × 5 angles");
-    assert!(shows(&h, "T (%)"), "the colour scale is labelled");
+    assert!(
+        shows_part(&h, "point at the map"),
+        "the readout invites a pointer"
+    );
     thicken_top_layer(&mut h);
     let after = h.state().analysis.map.result().unwrap().clone().unwrap();
     assert_eq!(after, library(&h), "recomputed for the edit");
@@ -344,13 +404,12 @@ fn map_view_is_the_library_map_and_a_large_one_can_be_cancelled() {
     h.step();
     assert!(shows_part(&h, "stopped:"), "says it stopped");
 
-    // A bad angle range: the library's words.
+    // A range where a material has no valid index: the library's words.
     h.state_mut().force_inline = true;
-    h.state_mut().analysis.map.settings.step_deg = 10.0;
-    h.state_mut().analysis.map.settings.to_deg = 95.0;
+    h.state_mut().analysis.map.settings.step_deg = 20.0;
+    fading_top_layer(&mut h);
+    h.state_mut().view.from_nm = 300.0;
     h.run();
-    assert!(
-        shows_part(&h, "cannot compute: angles:"),
-        "angle error shown"
-    );
+    assert!(shows_part(&h, "cannot compute: "), "error shown");
+    assert!(shows_part(&h, "Fades"), "naming the material");
 }

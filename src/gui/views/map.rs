@@ -324,8 +324,8 @@ impl MapView {
         ui.label(RichText::new(readout).monospace());
         let tex = self.texture.as_ref().map(|(_, t)| t.id());
         let mut hovered = None;
+        let h = ui.available_height().max(160.0);
         ui.horizontal(|ui| {
-            let h = ui.available_height();
             let w = (ui.available_width() - 96.0).max(120.0);
             ui.allocate_ui(egui::vec2(w, h), |ui| {
                 hovered = plot_ui(ui, m, tex);
