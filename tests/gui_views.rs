@@ -122,7 +122,7 @@ fn phase_view_shows_the_library_phase_and_follows_edits() {
 }
 
 #[test]
-fn field_view_shows_the_library_peaks_the_caution_and_errors() {
+fn field_view_shows_the_library_peaks_and_the_caution() {
     let mut h = open(AnalysisView::Field);
     assert!(shows(&h, cautions::FIELD), "the damage caution is shown");
     let library = |h: &Harness<'_, App>| {
@@ -168,8 +168,8 @@ fn field_view_shows_the_library_peaks_the_caution_and_errors() {
     let before = check(&h);
     thicken_top_layer(&mut h);
     let after = check(&h);
-    assert_ne!(
-        before.layers[0].peak_e2, after.layers[0].peak_e2,
+    assert!(
+        (before.layers[0].peak_e2 - after.layers[0].peak_e2).abs() > 1e-6,
         "recomputed"
     );
 
@@ -179,7 +179,11 @@ fn field_view_shows_the_library_peaks_the_caution_and_errors() {
     h.run();
     assert_eq!(h.state().analysis.field.pol, Polarisation::P);
     check(&h);
+}
 
+#[test]
+fn field_view_refuses_bad_input_with_the_library_message() {
+    let mut h = open(AnalysisView::Field);
     // An angle of 90° or more cannot be entered: the field holds it below.
     h.state_mut().analysis.field.aoi_deg = 95.0;
     h.run();
@@ -204,14 +208,6 @@ fn field_view_shows_the_library_peaks_the_caution_and_errors() {
     .to_string();
     assert!(e.contains("Fades") && e.contains("300"), "{e}");
     assert!(shows(&h, &format!("cannot compute: {e}")), "{e}");
-    assert!(
-        h.state_mut().apply(stackwise::gui::Command::Undo),
-        "material back"
-    );
-    assert!(
-        h.state_mut().apply(stackwise::gui::Command::Undo),
-        "material list back"
-    );
     // A design with no layers has no field profile to show.
     h.state_mut().analysis.field.wavelength_nm = 550.0;
     h.state_mut().analysis.field.aoi_deg = 0.0;

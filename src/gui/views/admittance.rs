@@ -104,7 +104,7 @@ impl AdmittanceView {
         let (wl, aoi, pol) = (self.wavelength_nm, self.aoi_deg, self.pol);
         let key = (subject.stamp(), wl.to_bits(), aoi.to_bits(), pol);
         let design = subject.design;
-        self.cache.update(&key, false, run.inline, &run.wake, || {
+        self.cache.update(&key, false, run, || {
             let d = design.clone();
             move |_: Progress<'_, ()>| compute(&d, wl, aoi, pol)
         });

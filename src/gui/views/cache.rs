@@ -5,7 +5,8 @@
 use std::ops::ControlFlow;
 use std::time::{Duration, Instant};
 
-use crate::gui::jobs::{Job, JobEnd, Waker};
+use super::Runner;
+use crate::gui::jobs::{Job, JobEnd};
 
 /// A compute slower than this moves to a worker thread next time (as for the sweeps).
 pub const INLINE_LIMIT: Duration = crate::gui::compute::INLINE_LIMIT;
@@ -80,15 +81,9 @@ where
 
     /// Brings the cache up to date with `key`: nothing when it already is; otherwise runs
     /// `make()`'s work inline, or as a job when `heavy` or the last compute was slow (never
-    /// when `inline`, for tests and screenshots). A job for an older key is cancelled.
-    pub fn update<W>(
-        &mut self,
-        key: &K,
-        heavy: bool,
-        inline: bool,
-        wake: &Waker,
-        make: impl FnOnce() -> W,
-    ) where
+    /// when `run.inline`, for tests and screenshots). A job for an older key is cancelled.
+    pub fn update<W>(&mut self, key: &K, heavy: bool, run: &Runner, make: impl FnOnce() -> W)
+    where
         W: FnOnce(Progress<'_, P>) -> Result<T, String> + Send + 'static,
     {
         self.poll();
@@ -104,7 +99,7 @@ where
             self.job = None;
         }
         let work = make();
-        if inline || !(heavy || self.slow) {
+        if run.inline || !(heavy || self.slow) {
             let start = Instant::now();
             let r = work(&mut |_| ControlFlow::Continue(()));
             self.slow = start.elapsed() > INLINE_LIMIT;
@@ -112,7 +107,7 @@ where
             return;
         }
         let next = self.generation + 1;
-        match Job::spawn(self.name, next, wake.clone(), move |rep| {
+        match Job::spawn(self.name, next, run.wake.clone(), move |rep| {
             work(&mut |p| rep.progress(p))
         }) {
             Ok(job) => self.job = Some((key.clone(), job)),
@@ -154,8 +149,11 @@ mod tests {
     use super::*;
     use std::sync::Arc;
 
-    fn nothing() -> Waker {
-        Arc::new(|| {})
+    fn runner(inline: bool) -> Runner {
+        Runner {
+            inline,
+            wake: Arc::new(|| {}),
+        }
     }
 
     #[test]
@@ -163,7 +161,7 @@ mod tests {
         let mut c: ViewCache<u64, u64> = ViewCache::new("test-view");
         let mut runs = 0;
         for key in [1, 1, 2, 2] {
-            c.update(&key, false, true, &nothing(), || {
+            c.update(&key, false, &runner(true), || {
                 runs += 1;
                 move |_: Progress<'_, ()>| Ok(key * 10)
             });
@@ -175,7 +173,7 @@ mod tests {
     #[test]
     fn heavy_work_runs_as_a_job_and_can_be_cancelled() {
         let mut c: ViewCache<u64, usize, usize> = ViewCache::new("test-view");
-        c.update(&1, true, false, &nothing(), || {
+        c.update(&1, true, &runner(false), || {
             |p: Progress<'_, usize>| {
                 for i in 0..10_000 {
                     if p(i).is_break() {

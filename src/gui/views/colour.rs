@@ -142,7 +142,7 @@ impl ColourView {
         let (aoi, ill, obs) = (self.aoi_deg, self.illuminant, self.observer);
         let key = (subject.stamp(), aoi.to_bits(), ill, obs);
         let design = subject.design;
-        self.cache.update(&key, false, run.inline, &run.wake, || {
+        self.cache.update(&key, false, run, || {
             let d = design.clone();
             move |_: Progress<'_, ()>| compute(&d, aoi, ill, obs)
         });

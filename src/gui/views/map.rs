@@ -258,7 +258,7 @@ impl MapView {
         let seconds = rows * s.columns as f64 * layers * SECONDS_PER_LAYER_POINT;
         let heavy = !seconds.is_finite() || seconds > INLINE_LIMIT.as_secs_f64();
         let design = subject.design;
-        self.cache.update(&key, heavy, run.inline, &run.wake, || {
+        self.cache.update(&key, heavy, run, || {
             let d = design.clone();
             move |p: Progress<'_, MapProgress>| compute(&d, range, &s, p)
         });

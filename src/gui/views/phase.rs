@@ -127,7 +127,7 @@ impl PhaseView {
         let sweep = view.spectrum_sweep();
         let key = (subject.stamp(), sweep);
         let design = subject.design;
-        self.cache.update(&key, false, run.inline, &run.wake, || {
+        self.cache.update(&key, false, run, || {
             let d = design.clone();
             move |_: Progress<'_, ()>| compute(&d, &sweep)
         });
