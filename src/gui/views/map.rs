@@ -91,23 +91,28 @@ pub fn scale_ticks(lo: f64, hi: f64, max_ticks: usize) -> Vec<f64> {
     let mut out = Vec::new();
     let mut k = first;
     while k <= last + 1e-9 {
-        // Multiples of the step, written without float noise (0.30000000000000004).
-        let v = k * step;
-        out.push(if v.abs() < step * 1e-9 { 0.0 } else { v });
+        // Multiples of the step, rounded to its decimals: 0.6, not 0.6000000000000001.
+        let scale = 10f64.powi(decimals(step) as i32);
+        out.push((k * step * scale).round() / scale + 0.0);
         k += 1.0;
     }
     out
 }
 
-/// A tick's text with as many decimals as the step needs.
-#[must_use]
-pub fn tick_text(v: f64, step: f64) -> String {
-    let decimals = (0..10)
+/// How many decimals write a multiple of `step` exactly (at most 9).
+fn decimals(step: f64) -> usize {
+    (0..10)
         .find(|&d| {
             let x = step * 10f64.powi(d);
             (x - x.round()).abs() < 1e-6 * x.abs().max(1.0)
         })
-        .unwrap_or(10) as usize;
+        .map_or(9, |d| d as usize)
+}
+
+/// A tick's text with as many decimals as the step needs.
+#[must_use]
+pub fn tick_text(v: f64, step: f64) -> String {
+    let decimals = decimals(step);
     format!("{v:.decimals$}")
 }
 
