@@ -346,6 +346,7 @@ fn map_view_is_the_library_map_and_a_large_one_can_be_cancelled() {
         from_deg: 0.0,
         to_deg: 80.0,
         step_deg: 20.0,
+        fit_scale: false,
     };
     h.run();
     let library = |h: &Harness<'_, App>| {

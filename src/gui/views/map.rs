@@ -30,6 +30,8 @@ pub struct MapSettings {
     pub to_deg: f64,
     /// Angle step, degrees.
     pub step_deg: f64,
+    /// Colour scale over the map's own lowest to highest value, not 0–100 %.
+    pub fit_scale: bool,
 }
 
 impl Default for MapSettings {
@@ -41,6 +43,7 @@ impl Default for MapSettings {
             from_deg: 0.0,
             to_deg: 80.0,
             step_deg: 1.0,
+            fit_scale: false,
         }
     }
 }
@@ -92,7 +95,7 @@ pub fn scale_ticks(lo: f64, hi: f64, max_ticks: usize) -> Vec<f64> {
     let mut k = first;
     while k <= last + 1e-9 {
         // Multiples of the step, rounded to its decimals: 0.6, not 0.6000000000000001.
-        let scale = 10f64.powi(decimals(step) as i32);
+        let scale = 10f64.powi(i32::from(decimals(step)));
         out.push((k * step * scale).round() / scale + 0.0);
         k += 1.0;
     }
@@ -100,19 +103,19 @@ pub fn scale_ticks(lo: f64, hi: f64, max_ticks: usize) -> Vec<f64> {
 }
 
 /// How many decimals write a multiple of `step` exactly (at most 9).
-fn decimals(step: f64) -> usize {
-    (0..10)
+fn decimals(step: f64) -> u8 {
+    (0u8..10)
         .find(|&d| {
-            let x = step * 10f64.powi(d);
+            let x = step * 10f64.powi(i32::from(d));
             (x - x.round()).abs() < 1e-6 * x.abs().max(1.0)
         })
-        .map_or(9, |d| d as usize)
+        .unwrap_or(9)
 }
 
 /// A tick's text with as many decimals as the step needs.
 #[must_use]
 pub fn tick_text(v: f64, step: f64) -> String {
-    let decimals = decimals(step);
+    let decimals = usize::from(decimals(step));
     format!("{v:.decimals$}")
 }
 
@@ -139,7 +142,7 @@ pub struct MapView {
     /// The settings.
     pub settings: MapSettings,
     cache: ViewCache<Key, RtMap, MapProgress>,
-    texture: Option<(u64, TextureHandle)>,
+    texture: Option<((u64, bool), TextureHandle)>,
     /// The readout under the pointer at the last frame: (λ nm, angle °, value %).
     pub readout: Option<(f64, f64, f64)>,
 }
@@ -188,13 +191,36 @@ fn extent(c: &[f64]) -> (f64, f64) {
     }
 }
 
-/// The map's picture: one pixel per value, the highest angle on top.
-fn image(m: &RtMap) -> ColorImage {
+/// The colour scale's span in percent: 0–100, or the finite values' own span.
+#[must_use]
+pub fn scale_span(m: &RtMap, fit: bool) -> (f64, f64) {
+    if !fit {
+        return (0.0, 100.0);
+    }
+    let (lo, hi) = m
+        .values
+        .iter()
+        .filter(|v| v.is_finite())
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| {
+            (a.min(100.0 * v), b.max(100.0 * v))
+        });
+    if lo.is_finite() && hi > lo {
+        (lo, hi)
+    } else if lo.is_finite() {
+        (lo - 0.5, lo + 0.5)
+    } else {
+        (0.0, 100.0)
+    }
+}
+
+/// The map's picture: one pixel per value, the highest angle on top, coloured over `span`
+/// (percent).
+fn image(m: &RtMap, (lo, hi): (f64, f64)) -> ColorImage {
     let (w, h) = (m.wavelength_nm.len(), m.aoi_deg.len());
     let mut pixels = Vec::with_capacity(w * h);
     for row in (0..h).rev() {
         for &v in m.row(row) {
-            let (r, g, b) = ramp_colour(v);
+            let (r, g, b) = ramp_colour((100.0 * v - lo) / (hi - lo));
             pixels.push(Color32::from_rgb(r, g, b));
         }
     }
@@ -232,6 +258,9 @@ impl MapView {
             number_ui(ui, "angles from", &mut s.from_deg, 0.0..=89.9, 0.5, "°");
             number_ui(ui, "to", &mut s.to_deg, 0.0..=89.9, 0.5, "°");
             number_ui(ui, "step", &mut s.step_deg, 0.01..=45.0, 0.05, "°");
+            ui.separator();
+            ui.checkbox(&mut s.fit_scale, "scale to the data")
+                .on_hover_text("colour scale from the map's lowest to its highest value");
         });
     }
 
@@ -309,12 +338,13 @@ impl MapView {
                 again = ui.button("Compute again").clicked();
             });
         }
-        let generation = self.cache.generation();
-        if self.texture.as_ref().is_none_or(|(g, _)| *g != generation) {
+        let span = scale_span(m, s.fit_scale);
+        let picture = (self.cache.generation(), s.fit_scale);
+        if self.texture.as_ref().is_none_or(|(g, _)| *g != picture) {
             let t = ui
                 .ctx()
-                .load_texture("rt-map", image(m), TextureOptions::NEAREST);
-            self.texture = Some((generation, t));
+                .load_texture("rt-map", image(m, span), TextureOptions::NEAREST);
+            self.texture = Some((picture, t));
         }
         let readout = self.readout.map_or_else(
             || "point at the map to read a value".to_owned(),
@@ -335,7 +365,7 @@ impl MapView {
             ui.allocate_ui(egui::vec2(w, h), |ui| {
                 hovered = plot_ui(ui, m, tex);
             });
-            scale_ui(ui, m.quantity, h);
+            scale_ui(ui, m.quantity, span, h);
         });
         self.readout = hovered.map(|(wl, a, v)| (wl, a, 100.0 * v));
         if again {
@@ -382,8 +412,9 @@ fn plot_ui(ui: &mut egui::Ui, m: &RtMap, tex: Option<egui::TextureId>) -> Option
         .inner
 }
 
-/// The colour scale beside the map: the ramp from 0 % (bottom) to 100 % (top), labelled.
-fn scale_ui(ui: &mut egui::Ui, q: Quantity, height: f32) {
+/// The colour scale beside the map: the ramp from `span`'s low end (bottom) to its high end
+/// (top), in percent, labelled.
+fn scale_ui(ui: &mut egui::Ui, q: Quantity, (lo, hi): (f64, f64), height: f32) {
     let (rect, _) = ui.allocate_exact_size(egui::vec2(88.0, height), egui::Sense::hover());
     let painter = ui.painter_at(rect);
     let bar = egui::Rect::from_min_max(
@@ -415,13 +446,13 @@ fn scale_ui(ui: &mut egui::Ui, q: Quantity, height: f32) {
         font.clone(),
         text,
     );
-    let ticks = scale_ticks(0.0, 100.0, 6);
+    let ticks = scale_ticks(lo, hi, 6);
     let step = match ticks.as_slice() {
         [a, b, ..] => b - a,
         _ => 1.0,
     };
     for v in ticks {
-        let y = bar.max.y - (v / 100.0) as f32 * bar.height();
+        let y = bar.max.y - ((v - lo) / (hi - lo)) as f32 * bar.height();
         painter.line_segment(
             [egui::pos2(bar.max.x, y), egui::pos2(bar.max.x + 4.0, y)],
             egui::Stroke::new(1.0, text),
@@ -479,5 +510,20 @@ mod tests {
         assert_eq!(value_near(&m, 496.0, -4.0), Some((500.0, 0.0, 0.1)));
         assert_eq!(value_near(&m, 530.0, 0.0), None, "right of the map");
         assert_eq!(value_near(&m, 500.0, 20.0), None, "above the map");
+        assert_eq!(scale_span(&m, false), (0.0, 100.0), "fixed 0–100 %");
+        let (lo, hi) = scale_span(&m, true);
+        assert!(
+            (lo - 10.0).abs() < 1e-12 && (hi - 60.0).abs() < 1e-12,
+            "{lo} {hi}"
+        );
+        let flat = RtMap {
+            values: vec![0.04; 6],
+            ..m
+        };
+        let (lo, hi) = scale_span(&flat, true);
+        assert!(
+            hi > lo && lo < 4.0 && hi > 4.0,
+            "a flat map still has a span: {lo} {hi}"
+        );
     }
 }
