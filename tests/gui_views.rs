@@ -25,7 +25,7 @@ use stackwise::optics::field::Polarisation;
 
 fn harness(app: App) -> Harness<'static, App> {
     Harness::builder()
-        .with_size(Vec2::new(1400.0, 1000.0))
+        .with_size(Vec2::new(1900.0, 1100.0))
         .build_ui_state(|ui, app: &mut App| app.show(ui), app)
 }
 
@@ -126,7 +126,7 @@ fn field_view_shows_the_library_peaks_and_the_caution() {
     let mut h = open(AnalysisView::Field);
     assert!(shows(&h, cautions::FIELD), "the damage caution is shown");
     let library = |h: &Harness<'_, App>| {
-        let f = &h.state().analysis.field;
+        let f = &h.state().analysis.field.point;
         let wl = f.wavelength_nm;
         field_profile(
             &design(h).resolve().unwrap(),
@@ -175,9 +175,9 @@ fn field_view_shows_the_library_peaks_and_the_caution() {
 
     // p at 45°: still the library's numbers.
     h.get_by_label("p").click();
-    h.state_mut().analysis.field.aoi_deg = 45.0;
+    h.state_mut().analysis.field.point.aoi_deg = 45.0;
     h.run();
-    assert_eq!(h.state().analysis.field.pol, Polarisation::P);
+    assert_eq!(h.state().analysis.field.point.pol, Polarisation::P);
     check(&h);
 }
 
@@ -185,17 +185,20 @@ fn field_view_shows_the_library_peaks_and_the_caution() {
 fn field_view_refuses_bad_input_with_the_library_message() {
     let mut h = open(AnalysisView::Field);
     // An angle of 90° or more cannot be entered: the field holds it below.
-    h.state_mut().analysis.field.aoi_deg = 95.0;
+    h.state_mut().analysis.field.point.aoi_deg = 95.0;
     h.run();
-    assert!(h.state().analysis.field.aoi_deg < 90.0, "held below 90°");
+    assert!(
+        h.state().analysis.field.point.aoi_deg < 90.0,
+        "held below 90°"
+    );
     assert!(
         h.state().analysis.field.result().unwrap().is_ok(),
         "computed"
     );
     // A wavelength where a material has no valid index: the library's message, no panic.
-    h.state_mut().analysis.field.aoi_deg = 0.0;
+    h.state_mut().analysis.field.point.aoi_deg = 0.0;
     fading_top_layer(&mut h);
-    h.state_mut().analysis.field.wavelength_nm = 300.0;
+    h.state_mut().analysis.field.point.wavelength_nm = 300.0;
     h.run();
     let e = field_profile(
         &design(&h).resolve().unwrap(),
@@ -209,8 +212,8 @@ fn field_view_refuses_bad_input_with_the_library_message() {
     assert!(e.contains("Fades") && e.contains("300"), "{e}");
     assert!(shows(&h, &format!("cannot compute: {e}")), "{e}");
     // A design with no layers has no field profile to show.
-    h.state_mut().analysis.field.wavelength_nm = 550.0;
-    h.state_mut().analysis.field.aoi_deg = 0.0;
+    h.state_mut().analysis.field.point.wavelength_nm = 550.0;
+    h.state_mut().analysis.field.point.aoi_deg = 0.0;
     assert!(
         h.state_mut().apply(Edit::ReplaceLayers(Vec::new())),
         "emptied"
@@ -225,7 +228,7 @@ fn field_view_refuses_bad_input_with_the_library_message() {
         h.state_mut().apply(stackwise::gui::Command::Undo),
         "layers back"
     );
-    h.state_mut().analysis.field.wavelength_nm = 5000.0;
+    h.state_mut().analysis.field.point.wavelength_nm = 5000.0;
     h.run();
     assert!(
         shows_part(&h, "N-BK7"),
@@ -237,7 +240,7 @@ fn field_view_refuses_bad_input_with_the_library_message() {
 fn admittance_view_ends_where_the_library_does() {
     let mut h = open(AnalysisView::Admittance);
     let end_text = |h: &Harness<'_, App>| {
-        let a = &h.state().analysis.admittance;
+        let a = &h.state().analysis.admittance.point;
         let wl = a.wavelength_nm;
         let y = admittance_locus(
             &design(h).resolve().unwrap(),
@@ -273,7 +276,7 @@ fn admittance_view_ends_where_the_library_does() {
     );
 
     fading_top_layer(&mut h);
-    h.state_mut().analysis.admittance.wavelength_nm = 300.0;
+    h.state_mut().analysis.admittance.point.wavelength_nm = 300.0;
     h.run();
     let e = admittance_locus(
         &design(&h).resolve().unwrap(),

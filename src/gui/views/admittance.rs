@@ -10,7 +10,7 @@ use crate::gui::theme;
 use crate::optics::field::Polarisation;
 
 use super::cache::{Progress, ViewCache};
-use super::{Runner, Stamp, Subject, busy_ui, error_ui, point_ui, warnings_ui};
+use super::{Point, PointKey, Runner, Stamp, Subject, busy_ui, shown, warnings_ui};
 
 /// The thickness step of the locus: 200 samples per wavelength, as the command line's
 /// default.
@@ -55,16 +55,12 @@ pub fn compute(
     Ok(LocusResult { locus, layers })
 }
 
-type Key = (Stamp, u64, u64, Polarisation);
+type Key = (Stamp, PointKey);
 
 /// The admittance view: its settings and its cached result.
 pub struct AdmittanceView {
-    /// Wavelength, nm.
-    pub wavelength_nm: f64,
-    /// Angle of incidence, degrees.
-    pub aoi_deg: f64,
-    /// Polarisation.
-    pub pol: Polarisation,
+    /// Wavelength, angle and polarisation.
+    pub point: Point,
     cache: ViewCache<Key, LocusResult>,
 }
 
@@ -73,9 +69,7 @@ impl AdmittanceView {
     #[must_use]
     pub fn new(wavelength_nm: f64) -> Self {
         Self {
-            wavelength_nm,
-            aoi_deg: 0.0,
-            pol: Polarisation::S,
+            point: Point::new(wavelength_nm),
             cache: ViewCache::new("admittance-view"),
         }
     }
@@ -93,28 +87,21 @@ impl AdmittanceView {
     }
 
     pub(super) fn ui(&mut self, ui: &mut egui::Ui, subject: Subject<'_>, run: &Runner) {
-        ui.horizontal_wrapped(|ui| {
-            point_ui(
-                ui,
-                &mut self.wavelength_nm,
-                &mut self.aoi_deg,
-                &mut self.pol,
-            );
-        });
-        let (wl, aoi, pol) = (self.wavelength_nm, self.aoi_deg, self.pol);
-        let key = (subject.stamp(), wl.to_bits(), aoi.to_bits(), pol);
+        self.point.ui(ui);
+        let Point {
+            wavelength_nm: wl,
+            aoi_deg: aoi,
+            pol,
+        } = self.point;
+        let key = (subject.stamp(), self.point.key());
         let design = subject.design;
         self.cache.update(&key, false, run, || {
             let d = design.clone();
             move |_: Progress<'_, ()>| compute(&d, wl, aoi, pol)
         });
         busy_ui(ui, self.cache.busy());
-        let Some(result) = self.cache.result() else {
+        let Some(l) = shown(ui, self.cache.result()) else {
             return;
-        };
-        let l = match result {
-            Ok(l) => l,
-            Err(e) => return error_ui(ui, e),
         };
         warnings_ui(ui, &l.locus.warnings);
         summary_ui(ui, &l.locus);

@@ -16,7 +16,7 @@ use crate::gui::plots::number_ui;
 use crate::gui::theme;
 
 use super::cache::{Progress, ViewCache};
-use super::{Runner, Stamp, Subject, busy_ui, error_ui, warnings_ui};
+use super::{Runner, Stamp, Subject, busy_ui, shown, warnings_ui};
 
 /// Last angle of the colour's path, degrees.
 pub const PATH_TO_DEG: f64 = 80.0;
@@ -147,15 +147,13 @@ impl ColourView {
             move |_: Progress<'_, ()>| compute(&d, aoi, ill, obs)
         });
         busy_ui(ui, self.cache.busy());
-        let Some(result) = self.cache.result() else {
+        let Some(c) = shown(ui, self.cache.result()) else {
             return;
         };
-        let c = match result {
-            Ok(c) => c,
-            Err(e) => return error_ui(ui, e),
-        };
         warnings_ui(ui, &c.at.warnings);
-        table_ui(ui, c);
+        egui::ScrollArea::horizontal()
+            .id_salt("colour-table-scroll")
+            .show(ui, |ui| table_ui(ui, c));
         ui.label(
             RichText::new(format!(
                 "unpolarised light (mean of s and p), 360–780 nm in 5 nm steps; L*a*b* against \

@@ -14,7 +14,7 @@ use crate::gui::theme;
 use crate::optics::field::Polarisation;
 
 use super::cache::{Progress, ViewCache};
-use super::{Runner, Stamp, Subject, busy_ui, error_ui, point_ui, warnings_ui};
+use super::{Point, PointKey, Runner, Stamp, Subject, busy_ui, shown, warnings_ui};
 
 /// The depth step of the profile: 200 samples per wavelength, as the command line's default.
 #[must_use]
@@ -62,16 +62,12 @@ pub fn compute(
     })
 }
 
-type Key = (Stamp, u64, u64, Polarisation);
+type Key = (Stamp, PointKey);
 
 /// The field view: its settings and its cached result.
 pub struct FieldView {
-    /// Wavelength, nm.
-    pub wavelength_nm: f64,
-    /// Angle of incidence, degrees.
-    pub aoi_deg: f64,
-    /// Polarisation.
-    pub pol: Polarisation,
+    /// Wavelength, angle and polarisation.
+    pub point: Point,
     cache: ViewCache<Key, FieldResult>,
 }
 
@@ -80,9 +76,7 @@ impl FieldView {
     #[must_use]
     pub fn new(wavelength_nm: f64) -> Self {
         Self {
-            wavelength_nm,
-            aoi_deg: 0.0,
-            pol: Polarisation::S,
+            point: Point::new(wavelength_nm),
             cache: ViewCache::new("field-view"),
         }
     }
@@ -100,29 +94,22 @@ impl FieldView {
     }
 
     pub(super) fn ui(&mut self, ui: &mut egui::Ui, subject: Subject<'_>, run: &Runner) {
-        ui.horizontal_wrapped(|ui| {
-            point_ui(
-                ui,
-                &mut self.wavelength_nm,
-                &mut self.aoi_deg,
-                &mut self.pol,
-            );
-        });
+        self.point.ui(ui);
         ui.colored_label(ui.visuals().warn_fg_color, cautions::FIELD);
-        let (wl, aoi, pol) = (self.wavelength_nm, self.aoi_deg, self.pol);
-        let key = (subject.stamp(), wl.to_bits(), aoi.to_bits(), pol);
+        let Point {
+            wavelength_nm: wl,
+            aoi_deg: aoi,
+            pol,
+        } = self.point;
+        let key = (subject.stamp(), self.point.key());
         let design = subject.design;
         self.cache.update(&key, false, run, || {
             let d = design.clone();
             move |_: Progress<'_, ()>| compute(&d, wl, aoi, pol)
         });
         busy_ui(ui, self.cache.busy());
-        let Some(result) = self.cache.result() else {
+        let Some(f) = shown(ui, self.cache.result()) else {
             return;
-        };
-        let f = match result {
-            Ok(f) => f,
-            Err(e) => return error_ui(ui, e),
         };
         warnings_ui(ui, &f.profile.warnings);
         summary_ui(ui, &f.profile);
@@ -250,11 +237,11 @@ fn table_ui(ui: &mut egui::Ui, p: &FieldProfile) {
         m if m == n + 1 => "incident medium".to_owned(),
         m => format!("layer {m}"),
     };
-    ui.columns(2, |cols| {
-        cols[0].strong("Peak in each layer (front surface first)");
+    let layers = |ui: &mut egui::Ui| {
+        ui.strong("Peak in each layer (front surface first)");
         egui::Grid::new("field-layer-peaks")
             .striped(true)
-            .show(&mut cols[0], |ui| {
+            .show(ui, |ui| {
                 for h in ["layer", "material", "depth (nm)", "peak |E|²", "at (nm)"] {
                     ui.strong(h);
                 }
@@ -268,10 +255,12 @@ fn table_ui(ui: &mut egui::Ui, p: &FieldProfile) {
                     ui.end_row();
                 }
             });
-        cols[1].strong("At each interface (both sides)");
+    };
+    let interfaces = |ui: &mut egui::Ui| {
+        ui.strong("At each interface (both sides)");
         egui::Grid::new("field-interfaces")
             .striped(true)
-            .show(&mut cols[1], |ui| {
+            .show(ui, |ui| {
                 for h in ["between", "depth (nm)", "|E|² above", "|E|² below"] {
                     ui.strong(h);
                 }
@@ -284,5 +273,16 @@ fn table_ui(ui: &mut egui::Ui, p: &FieldProfile) {
                     ui.end_row();
                 }
             });
-    });
+    };
+    // Side by side when there is room, else one under the other.
+    if ui.available_width() >= 760.0 {
+        ui.columns(2, |cols| {
+            layers(&mut cols[0]);
+            interfaces(&mut cols[1]);
+        });
+    } else {
+        layers(ui);
+        ui.add_space(8.0);
+        interfaces(ui);
+    }
 }

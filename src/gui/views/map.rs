@@ -13,7 +13,7 @@ use crate::export::heatmap::ramp_colour;
 use crate::gui::plots::{ViewSettings, number_ui};
 
 use super::cache::{INLINE_LIMIT, Progress, ViewCache};
-use super::{Runner, Stamp, Subject, busy_ui, error_ui, warnings_ui};
+use super::{Runner, Stamp, Subject, busy_ui, shown, warnings_ui};
 
 /// The map's settings besides the wavelength range (which is the spectrum view's).
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -316,12 +316,8 @@ impl MapView {
         } else {
             busy_ui(ui, false);
         }
-        let Some(result) = self.cache.result() else {
+        let Some(m) = shown(ui, self.cache.result()) else {
             return;
-        };
-        let m = match result {
-            Ok(m) => m,
-            Err(e) => return error_ui(ui, e),
         };
         warnings_ui(ui, &m.warnings);
         let mut again = false;

@@ -165,21 +165,6 @@ impl AnalysisState {
     }
 }
 
-/// A wavelength, angle and s/p row (the field and admittance views).
-fn point_ui(ui: &mut egui::Ui, wavelength_nm: &mut f64, aoi_deg: &mut f64, pol: &mut Polarisation) {
-    number_ui(
-        ui,
-        "wavelength",
-        wavelength_nm,
-        1.0..=1_000_000.0,
-        1.0,
-        " nm",
-    );
-    number_ui(ui, "angle of incidence", aoi_deg, 0.0..=89.9, 0.5, "°");
-    ui.selectable_value(pol, Polarisation::S, "s");
-    ui.selectable_value(pol, Polarisation::P, "p");
-}
-
 /// The library's error, as the view shows it.
 fn error_ui(ui: &mut egui::Ui, e: &str) {
     ui.colored_label(ui.visuals().error_fg_color, format!("cannot compute: {e}"));
@@ -198,6 +183,76 @@ fn busy_ui(ui: &mut egui::Ui, busy: bool) {
         ui.horizontal(|ui| {
             ui.spinner();
             ui.label("computing…");
+        });
+    }
+}
+
+/// The result a view draws: `None` (after saying why) while there is none yet or when the
+/// compute failed.
+fn shown<'a, T>(ui: &mut egui::Ui, result: Option<&'a Result<T, String>>) -> Option<&'a T> {
+    match result? {
+        Ok(t) => Some(t),
+        Err(e) => {
+            error_ui(ui, e);
+            None
+        }
+    }
+}
+
+/// A wavelength, angle and polarisation (the field and admittance views).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Point {
+    /// Wavelength, nm.
+    pub wavelength_nm: f64,
+    /// Angle of incidence, degrees.
+    pub aoi_deg: f64,
+    /// Polarisation.
+    pub pol: Polarisation,
+}
+
+/// [`Point`] as an exact cache key.
+type PointKey = (u64, u64, Polarisation);
+
+impl Point {
+    /// At `wavelength_nm`, normal incidence, s.
+    #[must_use]
+    pub fn new(wavelength_nm: f64) -> Self {
+        Self {
+            wavelength_nm,
+            aoi_deg: 0.0,
+            pol: Polarisation::S,
+        }
+    }
+
+    fn key(&self) -> PointKey {
+        (
+            self.wavelength_nm.to_bits(),
+            self.aoi_deg.to_bits(),
+            self.pol,
+        )
+    }
+
+    /// Its control row.
+    fn ui(&mut self, ui: &mut egui::Ui) {
+        ui.horizontal_wrapped(|ui| {
+            number_ui(
+                ui,
+                "wavelength",
+                &mut self.wavelength_nm,
+                1.0..=1_000_000.0,
+                1.0,
+                " nm",
+            );
+            number_ui(
+                ui,
+                "angle of incidence",
+                &mut self.aoi_deg,
+                0.0..=89.9,
+                0.5,
+                "°",
+            );
+            ui.selectable_value(&mut self.pol, Polarisation::S, "s");
+            ui.selectable_value(&mut self.pol, Polarisation::P, "p");
         });
     }
 }

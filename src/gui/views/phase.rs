@@ -10,7 +10,7 @@ use crate::gui::plots::ViewSettings;
 use crate::gui::theme;
 
 use super::cache::{Progress, ViewCache};
-use super::{Runner, Stamp, Subject, busy_ui, error_ui, warnings_ui};
+use super::{Runner, Stamp, Subject, busy_ui, shown, warnings_ui};
 
 /// Which quantity is drawn.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
@@ -158,12 +158,8 @@ impl PhaseView {
             .weak(),
         );
         busy_ui(ui, self.cache.busy());
-        let Some(result) = self.cache.result() else {
+        let Some(p) = shown(ui, self.cache.result()) else {
             return;
-        };
-        let p = match result {
-            Ok(p) => p,
-            Err(e) => return error_ui(ui, e),
         };
         warnings_ui(ui, &p.warnings);
         let (cs, cp) = match self.light {
