@@ -455,3 +455,107 @@ pub fn colour_path(
     }
     Ok(path)
 }
+
+/// Shortest wavelength of the drawn spectral locus, nm.
+pub const LOCUS_FROM_NM: f64 = 380.0;
+/// Longest wavelength of the drawn spectral locus, nm (beyond it the chromaticity barely
+/// moves).
+pub const LOCUS_TO_NM: f64 = 700.0;
+
+/// The outline of the chromaticity diagram for `observer`: the (x, y) of each monochromatic
+/// stimulus from [`LOCUS_FROM_NM`] to [`LOCUS_TO_NM`] in 5 nm steps (from the embedded CIE
+/// table), closed by the line of purples back to the first point. Returns (wavelength nm,
+/// [x, y]) pairs; the last pair repeats the first.
+///
+/// ```
+/// use stackwise::analysis::color::{spectral_locus, Observer};
+/// let locus = spectral_locus(Observer::Cie1931TwoDeg)?;
+/// assert_eq!(locus.first(), locus.last());
+/// # Ok::<(), stackwise::analysis::ViewError>(())
+/// ```
+pub fn spectral_locus(observer: Observer) -> Result<Vec<(f64, [f64; 2])>, ViewError> {
+    let rows = table()?;
+    let off = match observer {
+        Observer::Cie1931TwoDeg => 0,
+        Observer::Cie1964TenDeg => 3,
+    };
+    let mut out: Vec<(f64, [f64; 2])> = rows
+        .iter()
+        .enumerate()
+        .map(|(i, row)| (FIRST_NM + STEP_NM * i as f64, row))
+        .filter(|(wl, _)| (LOCUS_FROM_NM..=LOCUS_TO_NM).contains(wl))
+        .map(|(wl, row)| {
+            let xyz = Xyz {
+                x: row[off],
+                y: row[off + 1],
+                z: row[off + 2],
+            };
+            (wl, chromaticity(xyz))
+        })
+        .collect();
+    if let Some(&first) = out.first() {
+        out.push(first);
+    }
+    Ok(out)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Whether `p` lies inside the closed polygon `poly` (even-odd rule).
+    fn inside(poly: &[[f64; 2]], p: [f64; 2]) -> bool {
+        let mut c = false;
+        for w in poly.windows(2) {
+            let (a, b) = (w[0], w[1]);
+            if (a[1] > p[1]) != (b[1] > p[1])
+                && p[0] < a[0] + (p[1] - a[1]) * (b[0] - a[0]) / (b[1] - a[1])
+            {
+                c = !c;
+            }
+        }
+        c
+    }
+
+    #[test]
+    fn spectral_locus_matches_the_cie_table_and_encloses_the_white_points() {
+        let two = spectral_locus(Observer::Cie1931TwoDeg).unwrap();
+        assert_eq!(two.len(), 66, "380–700 nm in 5 nm steps, closed");
+        assert_eq!(two.first(), two.last(), "closed by the line of purples");
+        // 520 nm, CIE 1931 2°: x̄ 0.06327, ȳ 0.71, z̄ 0.07824999 (CIE 015 table,
+        // reference/colorimetry.md §5.5) → x = 0.074302, y = 0.833803.
+        let (_, at520) = two
+            .iter()
+            .find(|(wl, _)| (*wl - 520.0).abs() < 1e-9)
+            .unwrap();
+        assert!((at520[0] - 0.074_302).abs() < 1e-6, "{at520:?}");
+        assert!((at520[1] - 0.833_803).abs() < 1e-6, "{at520:?}");
+        // The red end of the 2° locus is near (0.7347, 0.2653) (CIE 015, from memory).
+        let (_, red) = two[two.len() - 2];
+        assert!(
+            (red[0] - 0.7347).abs() < 2e-3 && (red[1] - 0.2653).abs() < 2e-3,
+            "{red:?}"
+        );
+        for observer in [Observer::Cie1931TwoDeg, Observer::Cie1964TenDeg] {
+            let outline: Vec<[f64; 2]> = spectral_locus(observer)
+                .unwrap()
+                .into_iter()
+                .map(|p| p.1)
+                .collect();
+            for illuminant in [Illuminant::D65, Illuminant::A] {
+                let w = chromaticity(white(illuminant, observer).unwrap());
+                assert!(
+                    inside(&outline, w),
+                    "{illuminant:?} {observer:?} white {w:?}"
+                );
+            }
+            assert!(!inside(&outline, [0.7, 0.7]), "outside the horseshoe");
+            assert!(
+                outline
+                    .iter()
+                    .all(|p| p.iter().all(|v| (0.0..=1.0).contains(v))),
+                "chromaticities lie in 0–1"
+            );
+        }
+    }
+}

@@ -26,6 +26,8 @@ pub enum CentralView {
     Plots,
     /// The compare view.
     Compare,
+    /// The analysis views (phase, field, admittance, colour, map) of the active design.
+    Analysis,
 }
 
 /// Side windows that can be open beside the main layout.
@@ -55,6 +57,8 @@ pub struct App {
     pub overlays: Vec<DesignId>,
     /// Settings of the compare view.
     pub compare: CompareSettings,
+    /// The analysis views' settings and results.
+    pub analysis: super::views::AnalysisState,
     /// Compute every sweep inline (tests and screenshots that must show a result at once).
     pub force_inline: bool,
     spectrum_plot: plots::PlotCache,
@@ -109,6 +113,7 @@ impl App {
             },
         };
         let view = ViewSettings::for_design(doc.design());
+        let analysis = super::views::AnalysisState::new(view.angle_wavelength_nm);
         let recent: Vec<PathBuf> = doc.path().map(Path::to_path_buf).into_iter().collect();
         let session = std::time::SystemTime::now()
             .duration_since(std::time::UNIX_EPOCH)
@@ -122,6 +127,7 @@ impl App {
             central: CentralView::default(),
             overlays: Vec::new(),
             compare: CompareSettings::default(),
+            analysis,
             force_inline: false,
             spectrum_plot: plots::PlotCache::default(),
             angle_plot: plots::PlotCache::default(),
@@ -307,6 +313,8 @@ impl App {
             let to_compare = ui
                 .selectable_value(&mut self.central, CentralView::Compare, "Compare designs")
                 .clicked();
+            ui.selectable_value(&mut self.central, CentralView::Analysis, "Analysis")
+                .on_hover_text("phase and GDD, field |E|², admittance locus, colour, map");
             // The first time, compare every open design; the ticks are the user's after that.
             if to_compare && self.compare.picked.is_empty() {
                 for d in &self.designs {
@@ -408,6 +416,15 @@ impl App {
                     &mut out,
                 );
                 self.window_commands.extend(out);
+            }
+            CentralView::Analysis => {
+                let d = &self.designs[i];
+                let subject = super::views::Subject {
+                    id: d.id,
+                    design: d.doc.design(),
+                    revision: d.doc.revision(),
+                };
+                self.analysis.ui(ui, subject, &self.view, self.force_inline);
             }
         }
     }

@@ -43,6 +43,7 @@ pub mod stack;
 mod status;
 pub mod targets;
 pub mod theme;
+pub mod views;
 
 use std::path::PathBuf;
 use std::time::Duration;
