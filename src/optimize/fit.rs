@@ -362,8 +362,8 @@ impl Residuals for Problem<'_> {
     fn residuals(&mut self, x: &[f64], out: &mut [f64]) {
         self.set(x);
         let w = self.norm();
-        for row in 0..self.wavelengths_nm.len() {
-            out[row] = w * (self.value_at(row) - self.measured[row]);
+        for (row, o) in out.iter_mut().enumerate() {
+            *o = w * (self.value_at(row) - self.measured[row]);
         }
     }
 
@@ -619,7 +619,7 @@ pub fn fit(
             material: material.name.clone(),
             scale: s,
         });
-        if s == 1.0 {
+        if (s - 1.0).abs() < 1e-12 {
             continue;
         }
         let Some(model) = scaled_model(&material.model, s) else {
@@ -666,7 +666,7 @@ fn fresh_name(d: &Design, want: &str) -> String {
     if !taken(want) {
         return want.to_owned();
     }
-    (2..)
+    (2..=1000)
         .map(|i| format!("{want} {i}"))
         .find(|n| !taken(n))
         .unwrap_or_else(|| want.to_owned())

@@ -81,16 +81,9 @@ pub fn tolerance_with_yield(
     } else {
         Some(Evaluator::new(design, &[])?)
     };
-    let judge = evaluator.as_ref().map(|ev| {
-        move |d: &Draw<'_>| {
-            let merit = if d.index_scales.iter().all(|&k| k == 1.0) {
-                ev.merit(d.layers)
-            } else {
-                ev.with_index_scales(d.index_scales).merit(d.layers)
-            };
-            merit == 0.0
-        }
-    });
+    let judge = evaluator
+        .as_ref()
+        .map(|ev| move |d: &Draw<'_>| ev.with_index_scales(d.index_scales).merit(d.layers) == 0.0);
     let judge_ref = judge
         .as_ref()
         .map(|j| j as &crate::analysis::tolerance::Judge<'_>);

@@ -26,6 +26,14 @@ pub struct FitResult {
     pub outcome: FitOutcome,
 }
 
+/// A fit going on: for which design, which measured file and quantity.
+struct Running {
+    design: DesignId,
+    measured: String,
+    quantity: Quantity,
+    job: Job<FitProgress, FitOutcome, FitError>,
+}
+
 /// The fit tab's settings, run and result.
 #[derive(Default)]
 pub struct FitView {
@@ -33,12 +41,7 @@ pub struct FitView {
     pub index_scale: bool,
     /// Angle of incidence of the measurement (degrees).
     pub aoi_deg: f64,
-    job: Option<(
-        DesignId,
-        String,
-        Quantity,
-        Job<FitProgress, FitOutcome, FitError>,
-    )>,
+    job: Option<Running>,
     /// The last fit.
     pub result: Option<FitResult>,
     /// Why the last fit could not run.
@@ -54,14 +57,20 @@ impl FitView {
 
     /// Takes in the fit's end, if it has come.
     pub fn poll(&mut self) {
-        let Some((_, _, _, job)) = &mut self.job else {
+        let Some(run) = &mut self.job else {
             return;
         };
-        let Some(end) = job.poll() else {
+        let Some(end) = run.job.poll() else {
             return;
         };
-        let revision = job.tag();
-        let Some((design, measured, quantity, _)) = self.job.take() else {
+        let revision = run.job.tag();
+        let Some(Running {
+            design,
+            measured,
+            quantity,
+            ..
+        }) = self.job.take()
+        else {
             return;
         };
         match end {
@@ -102,7 +111,12 @@ impl FitView {
         };
         match Job::spawn("fit", active.revision, wake, work) {
             Ok(job) => {
-                self.job = Some((active.id, loaded.label.clone(), measured.quantity, job));
+                self.job = Some(Running {
+                    design: active.id,
+                    measured: loaded.label.clone(),
+                    quantity: measured.quantity,
+                    job,
+                });
             }
             Err(e) => self.error = Some(format!("cannot start the fit: {e}")),
         }
@@ -156,11 +170,11 @@ impl FitView {
             {
                 self.start(active, measured, crate::gui::optimize::waker(ui.ctx()));
             }
-            if let Some((_, _, _, job)) = &self.job {
+            if let Some(run) = &self.job {
                 if ui.button("Cancel").clicked() {
-                    job.cancel();
+                    run.job.cancel();
                 }
-                let text = job.latest().map_or_else(
+                let text = run.job.latest().map_or_else(
                     || "fitting: starting".to_owned(),
                     |p| {
                         format!(
@@ -176,9 +190,18 @@ impl FitView {
         if let Some(e) = &self.error {
             ui.colored_label(ui.visuals().error_fg_color, e);
         }
-        let Some(r) = &self.result else {
-            return action;
-        };
+        if let Some(r) = &self.result
+            && let Some(a) = result_ui(ui, r, active)
+        {
+            action = Some(a);
+        }
+        action
+    }
+}
+
+/// The last fit: figures, curves, per-layer changes, and the button to open it.
+fn result_ui(ui: &mut egui::Ui, r: &FitResult, active: &Active<'_>) -> Option<ProductionAction> {
+    {
         stale_note(ui, r.design, r.revision, active);
         let o = &r.outcome;
         let cancelled = if o.stop == FitStop::Cancelled {
@@ -234,9 +257,9 @@ impl FitView {
         {
             let mut d = o.design.clone();
             d.name = format!("{} (fitted)", d.name);
-            action = Some(ProductionAction::OpenAsNew(Box::new(d)));
+            return Some(ProductionAction::OpenAsNew(Box::new(d)));
         }
-        action
+        None
     }
 }
 
