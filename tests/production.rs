@@ -223,3 +223,80 @@ fn bad_input_gets_a_clear_message_and_writes_nothing() {
         assert!(!std::path::Path::new(out).exists(), "{args:?} wrote a file");
     }
 }
+
+/// One layer of n = 1.38, a quarter wave at 550 nm, on n = 1.52, with the target
+/// "R ≤ 1.27 % at 550 nm": the design reflects 1.2601 % there ((1.52 − 1.38²)/(1.52 + 1.38²))²,
+/// quarter-wave layer, Macleod, Thin-Film Optical Filters, ch. 3), so some runs meet it.
+fn quarter_wave_with_target() -> stackwise::design::Design {
+    use stackwise::design::{Design, Layer, Nm, Pol, Quantity, Target, TargetKind};
+    use stackwise::material::{Material, Model};
+    let mut d = Design::new_empty("QW");
+    d.substrate = "G".into();
+    d.materials = vec![
+        Material::user("G", Model::Constant { n: 1.52, k: 0.0 }),
+        Material::user("L", Model::Constant { n: 1.38, k: 0.0 }),
+    ];
+    d.layers = vec![Layer::new("L", Nm::new(550.0 / 4.0 / 1.38).expect("nm"))];
+    d.targets = vec![Target {
+        quantity: Quantity::R,
+        pol: Pol::Mean,
+        aoi_deg: 0.0,
+        from_nm: 550.0,
+        to_nm: 550.0,
+        step_nm: 0.0,
+        kind: TargetKind::AtMost,
+        goal: 0.0127,
+        tolerance: 0.0,
+        weight: 1.0,
+    }];
+    d
+}
+
+#[test]
+fn tolerance_reports_the_yield_and_sensitivity_the_merit_when_there_are_targets() {
+    use stackwise::analysis::tolerance::ToleranceSettings;
+    let dir = tempfile::tempdir().expect("a temporary folder");
+    let path = dir.path().join("qw.ron");
+    let d = quarter_wave_with_target();
+    std::fs::write(&path, file::to_ron_string(&d).expect("RON")).expect("written");
+    let p = path.to_str().expect("UTF-8 path");
+    let (_, err) = ok(&[
+        "tolerance",
+        p,
+        "--runs",
+        "200",
+        "--from",
+        "500",
+        "--to",
+        "600",
+    ]);
+    let s = ToleranceSettings {
+        runs: 200,
+        ..ToleranceSettings::default()
+    };
+    let lib = stackwise::optimize::tolerance_with_yield(&d, &[550.0], &s, |_| {
+        std::ops::ControlFlow::Continue(())
+    })
+    .expect("runs");
+    let passed = lib.passed.expect("judged");
+    assert!(passed > 0 && passed < 200, "a partial yield: {passed}");
+    let want = format!(
+        "yield {:.1} % ({passed} of 200 runs meet every target)",
+        100.0 * passed as f64 / 200.0
+    );
+    assert!(err.contains(&want), "{want} in: {err}");
+    // Without targets, no yield.
+    let (_, err) = ok(&["tolerance", &here(AR), "--runs", "20"]);
+    assert!(!err.contains("yield"), "{err}");
+
+    let (csv, err) = ok(&["sensitivity", p]);
+    assert!(err.contains("sensitivity of the merit"), "{err}");
+    let lib = stackwise::optimize::merit_sensitivity(&d).expect("computes");
+    let (_, rows) = table(&csv);
+    assert_eq!(
+        rows[0][3], lib.layers[0].sensitivity,
+        "the library's number"
+    );
+    let (_, err) = ok(&["sensitivity", p, "--spectrum"]);
+    assert!(err.contains("sensitivity of the spectrum"), "{err}");
+}
