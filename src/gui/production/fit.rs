@@ -282,7 +282,7 @@ fn fit_plot(ui: &mut egui::Ui, r: &FitResult) {
         .legend(Legend::default())
         .height(300.0)
         .x_axis_label("wavelength (nm)")
-        .y_axis_label("%")
+        .y_axis_label(format!("{} (%)", r.quantity.symbol()))
         .show(ui, |plot| {
             plot.points(
                 Points::new(r.measured.clone(), PlotPoints::Borrowed(&measured))

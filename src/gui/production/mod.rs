@@ -110,6 +110,7 @@ impl App {
         let (view, measured) = (&self.view, &self.measured);
         egui::Window::new("Production")
             .open(&mut open)
+            .default_pos([520.0, 70.0])
             .default_size([760.0, 620.0])
             .show(ctx, |ui| {
                 ui.horizontal(|ui| {

@@ -165,7 +165,7 @@ fn monitor_plot(ui: &mut egui::Ui, c: &MonitorCurve) {
         .legend(Legend::default())
         .height(300.0)
         .x_axis_label("deposited thickness (nm)")
-        .y_axis_label("%")
+        .y_axis_label(format!("{} (%)", c.settings.quantity.symbol()))
         .show(ui, |plot| {
             for l in &c.layers {
                 plot.vline(

@@ -251,7 +251,7 @@ fn envelope_plot(ui: &mut egui::Ui, e: &Envelope, quantity: Quantity) {
         .legend(Legend::default())
         .height(340.0)
         .x_axis_label("wavelength (nm)")
-        .y_axis_label("%")
+        .y_axis_label(format!("{} (%)", quantity.symbol()))
         .show(ui, |plot| {
             for (i, (name, b)) in bands.iter().enumerate() {
                 let style = if i == 0 || i + 1 == bands.len() {
