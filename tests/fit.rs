@@ -12,18 +12,18 @@ use std::fmt::Write as _;
 use std::ops::ControlFlow;
 use std::path::PathBuf;
 
-use clap::Parser as _;
 use nalgebra::DMatrix;
 use rand_distr::{Distribution as _, Normal};
 use rand_pcg::Pcg64Mcg;
 use rand_pcg::rand_core::SeedableRng as _;
 use stackwise::analysis::measured::MeasuredCurve;
 use stackwise::analysis::spectrum;
-use stackwise::cli::{Cli, run};
 use stackwise::design::{Design, Layer, Nm, Quantity, file};
 use stackwise::material::{Material, Model};
 use stackwise::optics::Side;
 use stackwise::optimize::fit::{FitError, FitSettings, FitStop, fit};
+
+mod common;
 
 /// Six layers of constant indices 2.35 / 1.46 on 1.52 glass, thicknesses away from quarter
 /// waves so no layer is degenerate with another.
@@ -322,15 +322,7 @@ fn bad_input_is_a_typed_error_naming_the_culprit() {
 }
 
 fn cli(args: &[&str]) -> Result<(String, String), String> {
-    let cli = Cli::try_parse_from(std::iter::once("stackwise").chain(args.iter().copied()))
-        .map_err(|e| e.to_string())?;
-    let cmd = cli.command.ok_or("no command")?;
-    let (mut out, mut err) = (Vec::new(), Vec::new());
-    run(cmd, &mut out, &mut err).map_err(|e| format!("{e:#}"))?;
-    Ok((
-        String::from_utf8(out).expect("UTF-8"),
-        String::from_utf8(err).expect("UTF-8"),
-    ))
+    common::run_in_process(args)
 }
 
 #[test]

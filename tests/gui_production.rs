@@ -17,8 +17,12 @@ use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable as _;
 use stackwise::analysis::monitor::{MonitorSettings, monitor};
 use stackwise::analysis::tolerance::ToleranceSettings;
-use stackwise::design::{Design, Layer, Nm, Pol, Quantity, Target, TargetKind, file};
+use stackwise::design::{Design, Layer, Nm, file};
 use stackwise::gui::App;
+
+mod common;
+
+use common::run_until;
 use stackwise::material::{Material, Model};
 use stackwise::optics::Side;
 use stackwise::optimize::{merit_sensitivity, tolerance_with_yield};
@@ -29,44 +33,14 @@ fn harness(app: App) -> Harness<'static, App> {
         .build_ui_state(|ui, app: &mut App| app.show(ui), app)
 }
 
-fn run_until(h: &mut Harness<'_, App>, done: impl Fn(&App) -> bool) {
-    for _ in 0..6000 {
-        h.step();
-        if done(h.state()) {
-            h.run();
-            return;
-        }
-        std::thread::sleep(std::time::Duration::from_millis(10));
-    }
-    panic!("the window did not get there within 60 s");
-}
-
 /// Two layers of constant indices on 1.52 glass with the target "R ≤ 1.27 % at 550 nm",
 /// which thickness and index errors meet in some runs and miss in others.
 fn design() -> Design {
-    let mut d = Design::new_empty("Two layers");
-    d.substrate = "G".into();
-    d.materials = vec![
-        Material::user("G", Model::Constant { n: 1.52, k: 0.0 }),
-        Material::user("H", Model::Constant { n: 2.0, k: 0.0 }),
-        Material::user("L", Model::Constant { n: 1.38, k: 0.0 }),
-    ];
-    d.layers = vec![
-        Layer::new("H", Nm::new(20.0).unwrap()),
-        Layer::new("L", Nm::new(550.0 / 4.0 / 1.38).unwrap()),
-    ];
-    d.targets = vec![Target {
-        quantity: Quantity::R,
-        pol: Pol::Mean,
-        aoi_deg: 0.0,
-        from_nm: 550.0,
-        to_nm: 550.0,
-        step_nm: 0.0,
-        kind: TargetKind::AtMost,
-        goal: 0.0,
-        tolerance: 0.0,
-        weight: 1.0,
-    }];
+    let mut d = common::quarter_wave_with_target(0.0);
+    d.name = "Two layers".into();
+    d.materials
+        .push(Material::user("H", Model::Constant { n: 2.0, k: 0.0 }));
+    d.layers.insert(0, Layer::new("H", Nm::new(20.0).unwrap()));
     // Set the goal just above the design's own R at 550 nm, so the yield is partial.
     let r = stackwise::optimize::evaluate_targets(&d).unwrap().targets[0].values[0];
     d.targets[0].goal = r + 0.0005;
@@ -189,7 +163,8 @@ fn sensitivity_and_monitoring_show_the_library_numbers() {
     }
     // A monitor wavelength outside a material's data: its message.
     let mut d2 = d.clone();
-    d2.materials[2] = Material::user(
+    let l = d2.materials.iter().position(|m| m.name == "L").unwrap();
+    d2.materials[l] = Material::user(
         "L",
         Model::Table {
             rows: vec![(400.0, 1.38, 0.0), (800.0, 1.37, 0.0)],

@@ -8,11 +8,11 @@
 
 use std::path::PathBuf;
 
-use clap::Parser as _;
 use stackwise::analysis::{spectrum, wavelengths_nm};
-use stackwise::cli::{Cli, run};
 use stackwise::design::file;
 use stackwise::optics::Side;
+
+mod common;
 
 const AR: &str = "designs/camera-window-ar.ron";
 const SHORTPASS: &str = "designs/shortpass-550.ron";
@@ -26,15 +26,7 @@ fn here(rel: &str) -> String {
 
 /// Parses and runs `stackwise ARGS`; (stdout, stderr) or the whole error chain.
 fn go(args: &[&str]) -> Result<(String, String), String> {
-    let cli = Cli::try_parse_from(std::iter::once("stackwise").chain(args.iter().copied()))
-        .map_err(|e| e.to_string())?;
-    let cmd = cli.command.ok_or("no command")?;
-    let (mut out, mut err) = (Vec::new(), Vec::new());
-    run(cmd, &mut out, &mut err).map_err(|e| format!("{e:#}"))?;
-    Ok((
-        String::from_utf8(out).expect("UTF-8"),
-        String::from_utf8(err).expect("UTF-8"),
-    ))
+    common::run_in_process(args)
 }
 
 fn ok(args: &[&str]) -> (String, String) {
@@ -224,40 +216,12 @@ fn bad_input_gets_a_clear_message_and_writes_nothing() {
     }
 }
 
-/// One layer of n = 1.38, a quarter wave at 550 nm, on n = 1.52, with the target
-/// "R ≤ 1.27 % at 550 nm": the design reflects 1.2601 % there ((1.52 − 1.38²)/(1.52 + 1.38²))²,
-/// quarter-wave layer, Macleod, Thin-Film Optical Filters, ch. 3), so some runs meet it.
-fn quarter_wave_with_target() -> stackwise::design::Design {
-    use stackwise::design::{Design, Layer, Nm, Pol, Quantity, Target, TargetKind};
-    use stackwise::material::{Material, Model};
-    let mut d = Design::new_empty("QW");
-    d.substrate = "G".into();
-    d.materials = vec![
-        Material::user("G", Model::Constant { n: 1.52, k: 0.0 }),
-        Material::user("L", Model::Constant { n: 1.38, k: 0.0 }),
-    ];
-    d.layers = vec![Layer::new("L", Nm::new(550.0 / 4.0 / 1.38).expect("nm"))];
-    d.targets = vec![Target {
-        quantity: Quantity::R,
-        pol: Pol::Mean,
-        aoi_deg: 0.0,
-        from_nm: 550.0,
-        to_nm: 550.0,
-        step_nm: 0.0,
-        kind: TargetKind::AtMost,
-        goal: 0.0127,
-        tolerance: 0.0,
-        weight: 1.0,
-    }];
-    d
-}
-
 #[test]
 fn tolerance_reports_the_yield_and_sensitivity_the_merit_when_there_are_targets() {
     use stackwise::analysis::tolerance::ToleranceSettings;
     let dir = tempfile::tempdir().expect("a temporary folder");
     let path = dir.path().join("qw.ron");
-    let d = quarter_wave_with_target();
+    let d = common::quarter_wave_with_target(0.0127);
     std::fs::write(&path, file::to_ron_string(&d).expect("RON")).expect("written");
     let p = path.to_str().expect("UTF-8 path");
     let (_, err) = ok(&[
