@@ -24,6 +24,8 @@ pub struct ToleranceResult {
     pub design: DesignId,
     /// Its revision then.
     pub revision: u64,
+    /// The quantity it spreads.
+    pub quantity: Quantity,
     /// The envelope.
     pub envelope: Envelope,
 }
@@ -44,7 +46,11 @@ pub struct ToleranceView {
     pub quantity: Quantity,
     /// Wavelengths over the spectrum view's range.
     pub points: usize,
-    job: Option<(DesignId, Job<ToleranceProgress, Envelope, YieldError>)>,
+    job: Option<(
+        DesignId,
+        Quantity,
+        Job<ToleranceProgress, Envelope, YieldError>,
+    )>,
     /// The last envelope.
     pub result: Option<ToleranceResult>,
     /// Why the last run could not run.
@@ -78,19 +84,20 @@ impl ToleranceView {
 
     /// Takes in the run's end, if it has come.
     pub fn poll(&mut self) {
-        let Some((id, job)) = &mut self.job else {
+        let Some((id, quantity, job)) = &mut self.job else {
             return;
         };
         let Some(end) = job.poll() else {
             return;
         };
-        let (design, revision) = (*id, job.tag());
+        let (design, quantity, revision) = (*id, *quantity, job.tag());
         self.job = None;
         match end {
             JobEnd::Done(envelope) => {
                 self.result = Some(ToleranceResult {
                     design,
                     revision,
+                    quantity,
                     envelope,
                 });
             }
@@ -131,7 +138,7 @@ impl ToleranceView {
             tolerance_with_yield(&design, &wl, &settings, |p| r.progress(*p))
         };
         match Job::spawn("tolerance", active.revision, wake, work) {
-            Ok(job) => self.job = Some((active.id, job)),
+            Ok(job) => self.job = Some((active.id, self.quantity, job)),
             Err(e) => self.error = Some(format!("cannot start the tolerance run: {e}")),
         }
     }
@@ -184,7 +191,7 @@ impl ToleranceView {
             {
                 self.start(active, view, crate::gui::optimize::waker(ui.ctx()));
             }
-            if let Some((_, job)) = &self.job {
+            if let Some((_, _, job)) = &self.job {
                 if ui.button("Cancel").clicked() {
                     job.cancel();
                 }
@@ -227,7 +234,7 @@ impl ToleranceView {
         for w in &e.warnings {
             ui.colored_label(ui.visuals().warn_fg_color, format!("warning: {w}"));
         }
-        envelope_plot(ui, e, self.quantity);
+        envelope_plot(ui, e, r.quantity);
     }
 }
 
