@@ -14,6 +14,10 @@ use stackwise::cli::{self, SideArg};
 use stackwise::design::file;
 use stackwise::gui::{App, Command, Edit, FileAction};
 
+mod common;
+
+use common::run_until;
+
 fn harness(app: App) -> Harness<'static, App> {
     Harness::builder()
         .with_size(Vec2::new(1400.0, 900.0))
@@ -496,19 +500,6 @@ fn with_no_desktop_dialog_a_typed_path_and_enter_save_there() {
 }
 
 /// Runs frames until `done` holds (background jobs report between frames), at most 60 s.
-fn run_until(h: &mut Harness<'_, App>, done: impl Fn(&App) -> bool) {
-    for _ in 0..6000 {
-        // One frame at a time: the progress bar animates, so the window never settles.
-        h.step();
-        if done(h.state()) {
-            h.run();
-            return;
-        }
-        std::thread::sleep(std::time::Duration::from_millis(10));
-    }
-    panic!("the window did not get there within 60 s");
-}
-
 fn ar_start() -> Harness<'static, App> {
     let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("designs/visible-ar-start.ron");
     let mut app = App::new(Some(path));

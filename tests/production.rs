@@ -8,11 +8,11 @@
 
 use std::path::PathBuf;
 
-use clap::Parser as _;
 use stackwise::analysis::{spectrum, wavelengths_nm};
-use stackwise::cli::{Cli, run};
 use stackwise::design::file;
 use stackwise::optics::Side;
+
+mod common;
 
 const AR: &str = "designs/camera-window-ar.ron";
 const SHORTPASS: &str = "designs/shortpass-550.ron";
@@ -26,15 +26,7 @@ fn here(rel: &str) -> String {
 
 /// Parses and runs `stackwise ARGS`; (stdout, stderr) or the whole error chain.
 fn go(args: &[&str]) -> Result<(String, String), String> {
-    let cli = Cli::try_parse_from(std::iter::once("stackwise").chain(args.iter().copied()))
-        .map_err(|e| e.to_string())?;
-    let cmd = cli.command.ok_or("no command")?;
-    let (mut out, mut err) = (Vec::new(), Vec::new());
-    run(cmd, &mut out, &mut err).map_err(|e| format!("{e:#}"))?;
-    Ok((
-        String::from_utf8(out).expect("UTF-8"),
-        String::from_utf8(err).expect("UTF-8"),
-    ))
+    common::run_in_process(args)
 }
 
 fn ok(args: &[&str]) -> (String, String) {
@@ -222,4 +214,53 @@ fn bad_input_gets_a_clear_message_and_writes_nothing() {
         assert!(!e.contains("panicked"), "{args:?}: {e}");
         assert!(!std::path::Path::new(out).exists(), "{args:?} wrote a file");
     }
+}
+
+#[test]
+fn tolerance_reports_the_yield_and_sensitivity_the_merit_when_there_are_targets() {
+    use stackwise::analysis::tolerance::ToleranceSettings;
+    let dir = tempfile::tempdir().expect("a temporary folder");
+    let path = dir.path().join("qw.ron");
+    let d = common::quarter_wave_with_target(0.0127);
+    std::fs::write(&path, file::to_ron_string(&d).expect("RON")).expect("written");
+    let p = path.to_str().expect("UTF-8 path");
+    let (_, err) = ok(&[
+        "tolerance",
+        p,
+        "--runs",
+        "200",
+        "--from",
+        "500",
+        "--to",
+        "600",
+    ]);
+    let s = ToleranceSettings {
+        runs: 200,
+        ..ToleranceSettings::default()
+    };
+    let lib = stackwise::optimize::tolerance_with_yield(&d, &[550.0], &s, |_| {
+        std::ops::ControlFlow::Continue(())
+    })
+    .expect("runs");
+    let passed = lib.passed.expect("judged");
+    assert!(passed > 0 && passed < 200, "a partial yield: {passed}");
+    let want = format!(
+        "yield {:.1} % ({passed} of 200 runs meet every target)",
+        100.0 * passed as f64 / 200.0
+    );
+    assert!(err.contains(&want), "{want} in: {err}");
+    // Without targets, no yield.
+    let (_, err) = ok(&["tolerance", &here(AR), "--runs", "20"]);
+    assert!(!err.contains("yield"), "{err}");
+
+    let (csv, err) = ok(&["sensitivity", p]);
+    assert!(err.contains("sensitivity of the merit"), "{err}");
+    let lib = stackwise::optimize::merit_sensitivity(&d).expect("computes");
+    let (_, rows) = table(&csv);
+    assert_eq!(
+        rows[0][3], lib.layers[0].sensitivity,
+        "the library's number"
+    );
+    let (_, err) = ok(&["sensitivity", p, "--spectrum"]);
+    assert!(err.contains("sensitivity of the spectrum"), "{err}");
 }

@@ -63,10 +63,16 @@ impl Sensitivity {
     /// The layers, most sensitive first (equal values keep layer order).
     #[must_use]
     pub fn ranked(&self) -> Vec<&LayerSensitivity> {
-        let mut v: Vec<&LayerSensitivity> = self.layers.iter().collect();
-        v.sort_by(|a, b| b.sensitivity.total_cmp(&a.sensitivity));
-        v
+        rank(&self.layers)
     }
+}
+
+/// `layers`, most sensitive first (equal values keep layer order).
+#[must_use]
+pub fn rank(layers: &[LayerSensitivity]) -> Vec<&LayerSensitivity> {
+    let mut v: Vec<&LayerSensitivity> = layers.iter().collect();
+    v.sort_by(|a, b| b.sensitivity.total_cmp(&a.sensitivity));
+    v
 }
 
 /// The sensitivity of every layer of `design` (see the module documentation).

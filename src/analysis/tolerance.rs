@@ -17,6 +17,11 @@
 //! chosen percentiles of the runs (linear between order statistics, the common "type 7"
 //! definition).
 //!
+//! When a judge is given ([`tolerance_judged`]), each run's drawn layers and index factors are
+//! also handed to it and the envelope counts the runs it accepts ([`Envelope::passed`]). The
+//! judge of the targets lives with the optimiser (`optimize::tolerance_with_yield`), so
+//! targets are judged in one place; this module does not know what a target is.
+//!
 //! Run i draws from its own generator (PCG-64 MCG seeded from the seed and i), so a result
 //! depends on the seed and the number of runs only — not on the number of threads or on
 //! where a cancelled job stopped.
@@ -149,7 +154,32 @@ pub struct Envelope {
     pub stop: ToleranceStop,
     /// Things to tell the user (e.g. extrapolated materials).
     pub warnings: Vec<Warning>,
+    /// Runs the judge accepted, when there was one ([`tolerance_judged`]); `None` otherwise.
+    pub passed: Option<usize>,
 }
+
+impl Envelope {
+    /// The share of runs the judge accepted (0 to 1), when there was a judge and a run.
+    #[must_use]
+    pub fn yield_fraction(&self) -> Option<f64> {
+        let passed = self.passed?;
+        (self.runs_done > 0).then(|| passed as f64 / self.runs_done as f64)
+    }
+}
+
+/// One run's draw as a judge sees it.
+#[derive(Clone, Copy, Debug)]
+pub struct Draw<'a> {
+    /// The run's layers, (material, nm): material positions as in
+    /// [`ResolvedDesign::materials`], thicknesses with the run's errors.
+    pub layers: &'a [(usize, f64)],
+    /// The run's factor on n of each material of [`ResolvedDesign::materials`].
+    pub index_scales: &'a [f64],
+}
+
+/// Decides whether one run is good (e.g. meets the design's targets). Called from several
+/// threads at once.
+pub type Judge<'j> = dyn Fn(&Draw<'_>) -> bool + Sync + 'j;
 
 /// Why the analysis could not run.
 #[derive(Clone, Debug, PartialEq, thiserror::Error)]
@@ -234,14 +264,15 @@ fn run_rng(seed: u64, run: usize) -> Pcg64Mcg {
     Pcg64Mcg::seed_from_u64(seed ^ (run as u64).wrapping_mul(0x9E37_79B9_7F4A_7C15))
 }
 
-/// One run: perturbed thicknesses and indices, then the curve.
+/// One run: perturbed thicknesses and indices, then the curve and the judge's verdict.
 fn one_run(
     grid: &IndexGrid<'_>,
     s: &ToleranceSettings,
+    judge: Option<&Judge<'_>>,
     run: usize,
     layers: &mut Vec<(usize, f64)>,
     table: &mut Vec<Complex64>,
-) -> Vec<f64> {
+) -> (Vec<f64>, bool) {
     let mut rng = run_rng(s.seed, run);
     let mut normal = || -> f64 { StandardNormal.sample(&mut rng) };
     let systematic = 1.0 + 0.01 * s.systematic_pct * normal();
@@ -262,7 +293,13 @@ fn one_run(
             n.re *= scale;
         }
     }
-    grid.curve_with(table, layers, s.quantity, s.pol)
+    let good = judge.is_some_and(|j| {
+        j(&Draw {
+            layers,
+            index_scales: &scales,
+        })
+    });
+    (grid.curve_with(table, layers, s.quantity, s.pol), good)
 }
 
 /// Percentile `p` (0–100) of sorted values, linear between order statistics.
@@ -288,6 +325,19 @@ pub fn tolerance(
     design: &ResolvedDesign,
     wavelengths_nm: &[f64],
     settings: &ToleranceSettings,
+    on_progress: impl FnMut(&ToleranceProgress) -> ControlFlow<()>,
+) -> Result<Envelope, ToleranceError> {
+    tolerance_judged(design, wavelengths_nm, settings, None, on_progress)
+}
+
+/// [`tolerance`], with every run also handed to `judge` (when given); the envelope then
+/// counts the accepted runs in [`Envelope::passed`]. The verdicts, like the curves, depend on
+/// the seed and the number of runs only.
+pub fn tolerance_judged(
+    design: &ResolvedDesign,
+    wavelengths_nm: &[f64],
+    settings: &ToleranceSettings,
+    judge: Option<&Judge<'_>>,
     mut on_progress: impl FnMut(&ToleranceProgress) -> ControlFlow<()>,
 ) -> Result<Envelope, ToleranceError> {
     check(settings, wavelengths_nm.len())?;
@@ -298,17 +348,19 @@ pub fn tolerance(
     let mut values: Vec<f64> = Vec::with_capacity(settings.runs * points);
     let mut stop = ToleranceStop::Completed;
     let mut done = 0;
+    let mut passed = 0;
     while done < settings.runs {
         let end = (done + BATCH).min(settings.runs);
-        let batch: Vec<Vec<f64>> = (done..end)
+        let batch: Vec<(Vec<f64>, bool)> = (done..end)
             .into_par_iter()
             .map_init(
                 || (Vec::new(), Vec::new()),
-                |(layers, table), run| one_run(&grid, settings, run, layers, table),
+                |(layers, table), run| one_run(&grid, settings, judge, run, layers, table),
             )
             .collect();
-        for curve in batch {
+        for (curve, good) in batch {
             values.extend(curve);
+            passed += usize::from(good);
         }
         done = end;
         let progress = ToleranceProgress {
@@ -343,6 +395,7 @@ pub fn tolerance(
         runs_done: done,
         stop,
         warnings: grid.warnings().to_vec(),
+        passed: judge.map(|_| passed),
     })
 }
 
@@ -488,6 +541,51 @@ mod tests {
         // The first runs are the same as in a full analysis of as many runs.
         let same = run(&ToleranceSettings { runs: BATCH, ..s });
         assert_eq!(e.bands, same.bands, "runs depend on seed and number only");
+    }
+
+    #[test]
+    fn a_judge_counts_the_runs_it_accepts() {
+        // Only the random thickness error: layer 1 is d (1 + 0.01 z), z standard normal, so
+        // "within 1 % of nominal" means |z| < 1, probability 0.6827 (standard normal table,
+        // e.g. Abramowitz & Stegun 26.2). 2000 runs: binomial σ ≈ 0.0104; allow 4σ.
+        let s = ToleranceSettings {
+            runs: 2000,
+            systematic_pct: 0.0,
+            index_pct: 0.0,
+            ..ToleranceSettings::default()
+        };
+        let nominal = mirror().layers[0].1;
+        let judge = |d: &Draw<'_>| {
+            assert!(
+                d.index_scales.iter().all(|&k| k == 1.0),
+                "no index errors drawn"
+            );
+            (d.layers[0].1 / nominal - 1.0).abs() < 0.01
+        };
+        let go = || {
+            tolerance_judged(&mirror(), &wavelengths(), &s, Some(&judge), |_| {
+                ControlFlow::Continue(())
+            })
+            .unwrap()
+        };
+        let e = go();
+        let y = e.yield_fraction().unwrap();
+        assert!((y - 0.6827).abs() < 0.042, "yield {y}");
+        let one_thread = rayon::ThreadPoolBuilder::new()
+            .num_threads(1)
+            .build()
+            .unwrap()
+            .install(go);
+        assert_eq!(
+            e.passed, one_thread.passed,
+            "verdicts independent of threads"
+        );
+        assert_eq!(run(&s).passed, None, "no judge, no count");
+        assert_eq!(
+            run(&s).bands,
+            e.bands,
+            "the judge does not change the envelope"
+        );
     }
 
     #[test]

@@ -6,6 +6,7 @@
 mod admittance;
 mod color;
 mod field;
+mod fit;
 pub mod guard;
 mod info;
 mod library;
@@ -22,6 +23,7 @@ mod views;
 pub use admittance::AdmittanceArgs;
 pub use color::ColorArgs;
 pub use field::{FieldArgs, SpArg};
+pub use fit::FitArgs;
 pub use map::{AngleRange, MapArgs, parse_angles};
 pub use monitor::MonitorArgs;
 pub use phase::PhaseArgs;
@@ -341,7 +343,8 @@ pub enum Command {
     /// summary on standard error.
     Tolerance(ToleranceArgs),
     /// Each layer's sensitivity as CSV, most sensitive first: layer,material,nm,sensitivity
-    /// (RMS change of R or T per 1 % thickness change).
+    /// (change of the merit per 1 % thickness change when the design has targets, else RMS
+    /// change of R or T); which one goes to standard error.
     Sensitivity(SensitivityArgs),
     /// The optical monitoring signal through the run as CSV: deposited_nm,layer,signal; the
     /// per-layer table (start, end, turning points) on standard error.
@@ -365,6 +368,10 @@ pub enum Command {
     /// Refines the thicknesses (with --needle: inserts layers too) to meet the design's
     /// targets; writes the new design to --out and the merit to standard output.
     Optimize(optimize::OptimizeArgs),
+    /// Fits a design's thicknesses (with --index-scale also a factor on each material's n) to
+    /// a measured R or T curve; writes the fitted design to --out, RMS before and after and
+    /// each layer's change to standard output.
+    Fit(FitArgs),
     /// The layer table of a design: material, nm, QWOT and optical thickness.
     Info {
         /// The design file (.ron).
@@ -517,6 +524,7 @@ pub fn run(cmd: Command, stdout: &mut dyn Write, stderr: &mut dyn Write) -> Resu
         | Command::Color(_)
         | Command::Map(_)) => views::run(&cmd, stdout, stderr)?,
         Command::Optimize(args) => optimize::run(&args, stdout, stderr)?,
+        Command::Fit(args) => fit::run(&args, stdout, stderr)?,
         Command::Info { design } => {
             let d = load_design(&design)?;
             info::info(&d, stdout)?;

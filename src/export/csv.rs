@@ -6,7 +6,7 @@ use std::io::{self, Write};
 
 use crate::analysis::compare::Figures;
 use crate::analysis::monitor::MonitorCurve;
-use crate::analysis::sensitivity::Sensitivity;
+use crate::analysis::sensitivity::{LayerSensitivity, Sensitivity, rank};
 use crate::analysis::tolerance::Envelope;
 use crate::analysis::{AngleScan, COLUMN_NAMES, Curves, Spectrum};
 use crate::number::Short;
@@ -62,7 +62,7 @@ pub fn write_nk(mut w: impl Write, rows: &[(f64, f64, f64)]) -> io::Result<()> {
 /// let e = Envelope {
 ///     wavelength_nm: vec![500.0], nominal: vec![0.1], percentiles: vec![5.0, 95.0],
 ///     bands: vec![vec![0.08], vec![0.13]], runs_done: 10, stop: ToleranceStop::Completed,
-///     warnings: vec![],
+///     warnings: vec![], passed: None,
 /// };
 /// let mut out = Vec::new();
 /// stackwise::export::csv::write_envelope(&mut out, &e).unwrap();
@@ -86,9 +86,15 @@ pub fn write_envelope(mut w: impl Write, e: &Envelope) -> io::Result<()> {
 
 /// Layer sensitivities, most sensitive first: `layer,material,nm,sensitivity` (the RMS change
 /// of the quantity per 1 % thickness change, a fraction).
-pub fn write_sensitivity(mut w: impl Write, s: &Sensitivity) -> io::Result<()> {
+pub fn write_sensitivity(w: impl Write, s: &Sensitivity) -> io::Result<()> {
+    write_layer_sensitivities(w, &s.layers)
+}
+
+/// Any per-layer sensitivities (of the spectrum or of the merit), most sensitive first:
+/// `layer,material,nm,sensitivity`.
+pub fn write_layer_sensitivities(mut w: impl Write, layers: &[LayerSensitivity]) -> io::Result<()> {
     writeln!(w, "layer,material,nm,sensitivity")?;
-    for l in s.ranked() {
+    for l in rank(layers) {
         writeln!(
             w,
             "{},{},{},{}",

@@ -90,6 +90,8 @@ pub struct App {
     pub measured: measured::MeasuredState,
     /// Optimisation settings, the run going on and its result.
     pub optimize: super::optimize::OptimizeState,
+    /// The production window (tolerances, sensitivity, monitoring, fit).
+    pub production: super::production::ProductionState,
     pub(super) browser: materials::BrowserState,
     title_sent: String,
     pub(super) commands: Vec<Command>,
@@ -150,6 +152,7 @@ impl App {
             export: export_window::ExportState::default(),
             measured: measured::MeasuredState::default(),
             optimize: super::optimize::OptimizeState::default(),
+            production: super::production::ProductionState::default(),
             browser: materials::BrowserState::default(),
             title_sent: String::new(),
             commands: Vec::new(),
@@ -284,6 +287,7 @@ impl App {
         self.cautions_ui(&ctx);
         self.materials_window_ui(&ctx);
         self.export_and_measured_windows_ui(&ctx);
+        self.production_window_ui(&ctx);
         self.choosing_ui(&ctx);
 
         if !self.commands.is_empty() || !self.window_commands.is_empty() {

@@ -37,11 +37,13 @@ pub enum Action {
     Export,
     /// Show or hide the measured-curve window.
     MeasuredCurve,
+    /// Show or hide the production window.
+    Production,
 }
 
 impl Action {
     /// Every action, in menu order.
-    pub const ALL: [Action; 13] = [
+    pub const ALL: [Action; 14] = [
         Action::New,
         Action::Open,
         Action::Save,
@@ -55,6 +57,7 @@ impl Action {
         Action::Cautions,
         Action::Export,
         Action::MeasuredCurve,
+        Action::Production,
     ];
 
     /// The menu text.
@@ -74,6 +77,7 @@ impl Action {
             Action::Cautions => "Cautions",
             Action::Export => "Export…",
             Action::MeasuredCurve => "Measured curve…",
+            Action::Production => "Production…",
         }
     }
 
@@ -105,7 +109,8 @@ impl Action {
             | Action::Materials
             | Action::Cautions
             | Action::Export
-            | Action::MeasuredCurve => &[],
+            | Action::MeasuredCurve
+            | Action::Production => &[],
         }
     }
 
@@ -136,6 +141,7 @@ impl App {
             Action::Cautions => self.windows.cautions ^= true,
             Action::Export => self.export.open ^= true,
             Action::MeasuredCurve => self.measured.open ^= true,
+            Action::Production => self.production.open ^= true,
         }
     }
 
@@ -211,6 +217,7 @@ impl App {
                 Action::Cautions,
                 Action::Export,
                 Action::MeasuredCurve,
+                Action::Production,
             ] {
                 if ui.button(a.label()).clicked() {
                     chosen = Some(a);

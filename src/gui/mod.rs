@@ -37,6 +37,7 @@ pub mod measured;
 mod menu;
 pub mod optimize;
 pub mod plots;
+pub mod production;
 mod recovery;
 mod section;
 pub mod stack;

@@ -47,9 +47,11 @@
 //! never changed.
 
 mod evaluate;
+pub mod fit;
 pub mod lsq;
 mod needle;
 mod problem;
+mod production;
 mod refine;
 
 use crate::design::{Design, DesignError};
@@ -58,6 +60,7 @@ use crate::material::MaterialError;
 pub use evaluate::{Evaluation, TargetResult, evaluate_targets};
 pub use needle::needle;
 pub use problem::Evaluator;
+pub use production::{MeritSensitivity, YieldError, merit_sensitivity, tolerance_with_yield};
 pub use refine::refine;
 
 /// Why an optimisation stopped.

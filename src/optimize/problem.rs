@@ -203,6 +203,21 @@ impl Evaluator {
         })
     }
 
+    /// A copy whose first `scales.len()` palette materials (the design's layer materials, in
+    /// the order of [`crate::design::ResolvedDesign::materials`]) have their n multiplied by
+    /// the given factors at every wavelength (k unchanged) — the index errors of a tolerance
+    /// run.
+    #[must_use]
+    pub fn with_index_scales(&self, scales: &[f64]) -> Evaluator {
+        let mut e = self.clone();
+        for row in e.table.chunks_mut(self.width) {
+            for (n, scale) in row.iter_mut().zip(scales) {
+                n.re *= scale;
+            }
+        }
+        e
+    }
+
     /// The materials layer lists refer to, by position.
     #[must_use]
     pub fn palette(&self) -> &[Material] {
@@ -401,7 +416,7 @@ pub(crate) fn value(r: &Response, q: Quantity, pol: Pol) -> f64 {
 }
 
 /// Its derivative with respect to layer `k`.
-fn d_value(g: &Gradient, k: usize, q: Quantity, pol: Pol) -> f64 {
+pub(crate) fn d_value(g: &Gradient, k: usize, q: Quantity, pol: Pol) -> f64 {
     let (s, p) = match q {
         Quantity::R => (g.d_r_s[k], g.d_r_p[k]),
         Quantity::T => (g.d_t_s[k], g.d_t_p[k]),

@@ -117,3 +117,62 @@ pub fn fails(args: &[&str]) -> String {
     assert!(!e.contains("panicked"), "{args:?} panicked: {e}");
     e
 }
+
+/// Parses and runs `stackwise ARGS` in this process, through the same parser and dispatcher as
+/// the binary; (stdout, stderr) or the whole error chain.
+pub fn run_in_process(args: &[&str]) -> Result<(String, String), String> {
+    use clap::Parser as _;
+    let cli = stackwise::cli::Cli::try_parse_from(
+        std::iter::once("stackwise").chain(args.iter().copied()),
+    )
+    .map_err(|e| e.to_string())?;
+    let cmd = cli.command.ok_or("no command")?;
+    let (mut out, mut err) = (Vec::new(), Vec::new());
+    stackwise::cli::run(cmd, &mut out, &mut err).map_err(|e| format!("{e:#}"))?;
+    Ok((
+        String::from_utf8(out).expect("UTF-8"),
+        String::from_utf8(err).expect("UTF-8"),
+    ))
+}
+
+/// One layer of n = 1.38 on n = 1.52, a quarter wave at 550 nm, with the target
+/// "R ≤ `goal` at 550 nm" (the layer alone reflects ((1.52 − 1.38²)/(1.52 + 1.38²))² =
+/// 1.2601 % there: quarter-wave layer, Macleod, Thin-Film Optical Filters, ch. 3).
+pub fn quarter_wave_with_target(goal: f64) -> stackwise::design::Design {
+    use stackwise::design::{Design, Layer, Nm, Pol, Quantity, Target, TargetKind};
+    use stackwise::material::{Material, Model};
+    let mut d = Design::new_empty("QW");
+    d.substrate = "G".into();
+    d.materials = vec![
+        Material::user("G", Model::Constant { n: 1.52, k: 0.0 }),
+        Material::user("L", Model::Constant { n: 1.38, k: 0.0 }),
+    ];
+    d.layers = vec![Layer::new("L", Nm::new(550.0 / 4.0 / 1.38).expect("nm"))];
+    d.targets = vec![Target {
+        quantity: Quantity::R,
+        pol: Pol::Mean,
+        aoi_deg: 0.0,
+        from_nm: 550.0,
+        to_nm: 550.0,
+        step_nm: 0.0,
+        kind: TargetKind::AtMost,
+        goal,
+        tolerance: 0.0,
+        weight: 1.0,
+    }];
+    d
+}
+
+/// Steps the window one frame at a time (a progress bar animates, so it never settles) until
+/// `done` holds; then lets it settle. Panics after about 60 s.
+pub fn run_until<S>(h: &mut egui_kittest::Harness<'_, S>, done: impl Fn(&S) -> bool) {
+    for _ in 0..6000 {
+        h.step();
+        if done(h.state()) {
+            h.run();
+            return;
+        }
+        std::thread::sleep(std::time::Duration::from_millis(10));
+    }
+    panic!("the window did not get there within 60 s");
+}
