@@ -6,16 +6,21 @@
 //! derivative is formed — so stacks of thousands of layers stay finite. Compiled once per
 //! instruction set, the best one chosen at run time ([`super::simd`]).
 
+#![allow(
+    clippy::inline_always,
+    reason = "the lane code must be inlined into each instruction set's version to use it"
+)]
+
 use num_complex::Complex64;
 
 use super::gradient::{Gradient, Pass, finish_gradient};
-use super::lanes::{Cx4, Tilted4, coherent4};
+use super::lanes::{Cx4, Tilted4, coherent4, inv};
 use super::simd::{self, F4, Level};
 use super::tmm::{BIG, Coherent, RENORM_EVERY, SMALL, Tilted, finish};
 use super::{Media4, StackAt};
 
 /// Reusable buffers for [`solve_gradient4`].
-#[derive(Debug, Default)]
+#[derive(Clone, Debug, Default)]
 pub struct GradientScratch4 {
     /// Per layer in pass order: cos δ, i sin δ (scaled) and k₀ q.
     trig: Vec<[Cx4; 3]>,
@@ -24,12 +29,6 @@ pub struct GradientScratch4 {
     below: Vec<([[Cx4; 2]; 2], [F4; 2])>,
     front: [Pass; 4],
     inside: [Pass; 4],
-}
-
-impl Clone for GradientScratch4 {
-    fn clone(&self) -> Self {
-        Self::default()
-    }
 }
 
 /// i·z.
@@ -54,17 +53,6 @@ fn scale(z: Cx4, f: F4) -> Cx4 {
     Cx4 {
         re: z.re * f,
         im: z.im * f,
-    }
-}
-
-/// 1/z.
-#[inline(always)]
-fn inv(z: Cx4) -> Cx4 {
-    let n = z.re * z.re + z.im * z.im;
-    let r = F4::ONE.zip(n, |a, b| a / b);
-    Cx4 {
-        re: z.re * r,
-        im: -(z.im * r),
     }
 }
 
@@ -128,9 +116,18 @@ fn pass4(
         Cx4::gather(incident.map(|t| t.eta_s)),
         Cx4::gather(incident.map(|t| t.eta_p)),
     ];
-    let (v, log_scale, norm) = simd::run_at(level, || {
-        forward(mats, layers, reversed, k0, eta_sub, trig, below)
-    });
+    let (v, log_scale, norm) = simd::run_at(
+        level,
+        Forward {
+            mats,
+            layers,
+            reversed,
+            k0,
+            eta_sub,
+            trig,
+            below,
+        },
+    );
     for (i, lane) in out.iter_mut().enumerate() {
         let (inc, sub) = (incident[i], substrate[i]);
         let cos_ratio = (inc.q / inc.n) / (sub.q / sub.n);
@@ -153,16 +150,87 @@ fn pass4(
             ),
         };
     }
-    simd::run_at(level, || {
-        backward(mats, layers, reversed, trig, below, eta0, v, norm, out);
-    });
+    simd::run_at(
+        level,
+        Backward {
+            mats,
+            layers,
+            reversed,
+            trig,
+            below,
+            eta0,
+            v,
+            norm,
+            out,
+        },
+    );
+}
+
+/// [`forward`] as an operation for [`simd::run_at`].
+struct Forward<'a> {
+    mats: &'a [Tilted4],
+    layers: &'a [(usize, f64)],
+    reversed: bool,
+    k0: F4,
+    eta_sub: [Cx4; 2],
+    trig: &'a mut Vec<[Cx4; 3]>,
+    below: &'a mut Vec<([[Cx4; 2]; 2], [F4; 2])>,
+}
+
+impl pulp::WithSimd for Forward<'_> {
+    type Output = ([[Cx4; 2]; 2], F4, [F4; 2]);
+
+    #[inline(always)]
+    fn with_simd<S: pulp::Simd>(self, _simd: S) -> Self::Output {
+        forward(
+            self.mats,
+            self.layers,
+            self.reversed,
+            self.k0,
+            self.eta_sub,
+            self.trig,
+            self.below,
+        )
+    }
+}
+
+/// [`backward`] as an operation for [`simd::run_at`].
+struct Backward<'a> {
+    mats: &'a [Tilted4],
+    layers: &'a [(usize, f64)],
+    reversed: bool,
+    trig: &'a [[Cx4; 3]],
+    below: &'a [([[Cx4; 2]; 2], [F4; 2])],
+    eta0: [Cx4; 2],
+    v: [[Cx4; 2]; 2],
+    norm: [F4; 2],
+    out: &'a mut [Pass; 4],
+}
+
+impl pulp::WithSimd for Backward<'_> {
+    type Output = ();
+
+    #[inline(always)]
+    fn with_simd<S: pulp::Simd>(self, _simd: S) {
+        backward(
+            self.mats,
+            self.layers,
+            self.reversed,
+            self.trig,
+            self.below,
+            self.eta0,
+            self.v,
+            self.norm,
+            self.out,
+        );
+    }
 }
 
 /// The forward pass: keeps [B; C] below each layer in `below` and the layer's trigonometry in
 /// `trig`; returns the final [B; C] (s, p), the log of the absorbing layers' scale and the
 /// log of the renormalisation of each polarisation.
 #[inline(always)]
-#[expect(clippy::type_complexity, reason = "unpacked by the one caller")]
+#[allow(clippy::type_complexity, reason = "unpacked by the one caller")]
 fn forward(
     mats: &[Tilted4],
     layers: &[(usize, f64)],
@@ -296,7 +364,7 @@ fn backward(
             let x1 = kq.mul(times_i(is.mul(cb).sub(eta.mul(cd.mul(bb)))));
             let mut dr = dr_factor.mul(add(w1[0].mul(x0), w1[1].mul(x1)));
             let mut dd = add(w2[0].mul(x0), w2[1].mul(x1)).mul(inv_den);
-            if scaled || below_norm.0 != [0.0; 4] {
+            if scaled || below_norm.0.iter().any(|&x| x != 0.0) {
                 dr = scale(dr, (f1 + below_norm - norm[pol] - norm[pol]).exp());
                 dd = scale(dd, (f2 + below_norm - norm[pol]).exp());
             }

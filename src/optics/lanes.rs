@@ -7,6 +7,11 @@
 //! The loop is compiled once per instruction set ([`super::simd`]) and the best one the
 //! processor has is chosen at run time; every version rounds identically.
 
+#![allow(
+    clippy::inline_always,
+    reason = "the lane code must be inlined into each instruction set's version to use it"
+)]
+
 use num_complex::Complex64;
 
 use super::simd::{self, F4, Level};
@@ -48,6 +53,23 @@ impl Cx4 {
     }
 }
 
+/// `a` if `c`, else `b` (a select, not a branch).
+#[inline(always)]
+fn pick(c: bool, a: f64, b: f64) -> f64 {
+    if c { a } else { b }
+}
+
+/// 1/z lane by lane.
+#[inline(always)]
+pub(crate) fn inv(z: Cx4) -> Cx4 {
+    let n = z.re * z.re + z.im * z.im;
+    let r = F4::ONE.zip(n, |a, b| a / b);
+    Cx4 {
+        re: z.re * r,
+        im: -(z.im * r),
+    }
+}
+
 /// Rescales each lane's [B; C] by a power of two when it has left [`SMALL`, `BIG`] (rare: a
 /// quick test of all lanes first); the natural logarithm taken out is added to `log_norm`.
 #[inline(always)]
@@ -82,6 +104,66 @@ pub(crate) struct Tilted4 {
 }
 
 impl Tilted4 {
+    /// Tilts four indices for four Snell invariants at once: [`Tilted::new`] lane by lane,
+    /// branch-free (both roots are formed and the right one chosen), so it vectorises.
+    pub(crate) fn new(n: [Complex64; 4], snell: [f64; 4]) -> Self {
+        let (nr, ni) = (F4(n.map(|z| z.re)), F4(n.map(|z| z.im)));
+        let s = F4(snell);
+        let n2 = Cx4 {
+            re: nr * nr - ni * ni,
+            im: nr * ni + ni * nr,
+        };
+        let (u, v) = (n2.re - s * s, n2.im);
+        let m = (u * u + v * v).map(f64::sqrt);
+        let half = F4::splat(0.5);
+        let t_pos = (half * (m + u)).map(f64::sqrt);
+        let t_neg = (half * (m - u)).map(f64::sqrt);
+        let two = F4::splat(2.0);
+        let div = |a: F4, b: F4| a.zip(b, |a, b| a / b);
+        // The principal root (see `tmm::principal_sqrt`), then the decaying branch.
+        let re_pos = t_pos;
+        let im_pos = div(v, two * t_pos);
+        let re_neg = div(v.abs(), two * t_neg);
+        let im_neg = t_neg.zip(v, f64::copysign);
+        let mut q = Cx4 {
+            re: F4(std::array::from_fn(|i| {
+                pick(
+                    m.0[i] == 0.0,
+                    0.0,
+                    pick(u.0[i] >= 0.0, re_pos.0[i], re_neg.0[i]),
+                )
+            })),
+            im: F4(std::array::from_fn(|i| {
+                pick(
+                    m.0[i] == 0.0,
+                    v.0[i],
+                    pick(u.0[i] >= 0.0, im_pos.0[i], im_neg.0[i]),
+                )
+            })),
+        };
+        for i in 0..4 {
+            let (re, im) = (q.re.0[i], q.im.0[i]);
+            let flip = im < 0.0 || (im == 0.0 && re < 0.0);
+            let (re, im) = (pick(flip, -re, re), pick(flip, -im, im));
+            // Exactly at a critical angle: a tiny q, as in `Tilted::new`.
+            let tiny = re * re + im * im < 1e-300;
+            q.re.0[i] = pick(tiny, 0.0, re);
+            q.im.0[i] = pick(tiny, 1e-150, im);
+        }
+        let inv_q = inv(q);
+        let inv_n2 = inv(n2);
+        Self {
+            q,
+            eta_s: q,
+            inv_eta_s: inv_q,
+            eta_p: n2.mul(inv_q),
+            inv_eta_p: q.mul(inv_n2),
+            real: q.im.0.iter().all(|&x| x == 0.0),
+        }
+    }
+
+    /// Four tilted media as lanes (the tests build stacks this way).
+    #[cfg(test)]
     pub(crate) fn gather(t: [&Tilted; 4]) -> Self {
         Self {
             q: Cx4::gather(t.map(|t| t.q)),
@@ -118,7 +200,14 @@ pub(crate) fn coherent4_at<'a>(
         Cx4::gather(substrate.map(|t| t.eta_p)),
     ];
     let k0 = F4(wavelength_nm.map(|w| std::f64::consts::TAU / w));
-    let (bc, log_s, log_p) = simd::run_at(level, || product4(layers, eta_sub, k0));
+    let (bc, log_s, log_p) = simd::run_at(
+        level,
+        Product {
+            layers,
+            eta_sub,
+            k0,
+        },
+    );
     let [(bs, cs), (bp, cp)] = bc;
     std::array::from_fn(|i| {
         let (inc, sub) = (incident[i], substrate[i]);
@@ -144,11 +233,27 @@ pub(crate) fn coherent4_at<'a>(
     })
 }
 
+/// [`product4`] as an operation for [`simd::run_at`].
+struct Product<I> {
+    layers: I,
+    eta_sub: [Cx4; 2],
+    k0: F4,
+}
+
+impl<'a, I: Iterator<Item = (&'a Tilted4, f64)>> pulp::WithSimd for Product<I> {
+    type Output = ([(Cx4, Cx4); 2], F4, F4);
+
+    #[inline(always)]
+    fn with_simd<S: pulp::Simd>(self, _simd: S) -> Self::Output {
+        product4(self.layers, self.eta_sub, self.k0)
+    }
+}
+
 /// [B; C] for s and p after all `layers`, starting from [1; η_sub], and the natural logarithm
 /// of the scale taken out of each (s, p). Always inlined, so it is compiled for the caller's
 /// instruction set.
 #[inline(always)]
-#[expect(
+#[allow(
     clippy::type_complexity,
     reason = "two polarisations of [B; C] and their scales, unpacked by the one caller"
 )]
@@ -337,5 +442,47 @@ mod tests {
             compared > 2000,
             "compared {compared} numbers, worst {worst}"
         );
+    }
+
+    /// Tilting four lanes at once against [`Tilted::new`] one by one: absorbing, lossless,
+    /// evanescent (beyond the critical angle) and exactly critical media.
+    #[test]
+    fn tilting_in_lanes_agrees_with_one_medium() {
+        let mut rng = Rng(0x9e37_79b9_7f4a_7c15);
+        let fields = |t: &Tilted| [t.q, t.eta_s, t.eta_p, t.inv_eta_s, t.inv_eta_p];
+        for case in 0..200 {
+            let n: [Complex64; 4] = std::array::from_fn(|i| match (case + i) % 4 {
+                0 => Complex64::new(rng.range(1.0, 3.0), rng.range(0.0, 2.0)),
+                1 => Complex64::new(rng.range(0.05, 1.0), rng.range(1.0, 8.0)),
+                2 => Complex64::new(rng.range(1.0, 2.0), 0.0),
+                _ => Complex64::new(1.0, 0.0),
+            });
+            let snell: [f64; 4] = std::array::from_fn(|i| match (case + i) % 5 {
+                // Exactly critical for the transparent index 1.0.
+                0 => 1.0,
+                _ => rng.range(0.0, 1.9),
+            });
+            let four = Tilted4::new(n, snell);
+            for i in 0..4 {
+                let one = Tilted::new(n[i], snell[i]);
+                let lanes = [
+                    four.q.lane(i),
+                    four.eta_s.lane(i),
+                    four.eta_p.lane(i),
+                    four.inv_eta_s.lane(i),
+                    four.inv_eta_p.lane(i),
+                ];
+                for (k, (a, b)) in lanes.iter().zip(fields(&one)).enumerate() {
+                    assert!(
+                        (a - b).norm() <= 1e-13 * (1.0 + b.norm()),
+                        "case {case} lane {i} field {k}: {a} vs {b} (n {}, S {})",
+                        n[i],
+                        snell[i]
+                    );
+                }
+            }
+            let all_real = (0..4).all(|i| Tilted::new(n[i], snell[i]).q.im == 0.0);
+            assert_eq!(four.real, all_real, "case {case}: lossless flag");
+        }
     }
 }

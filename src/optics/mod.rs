@@ -347,11 +347,12 @@ impl Media4 {
     fn tilt_materials(&mut self, stacks: [&StackAt<'_>; 4]) {
         let setups = &self.setups;
         self.packed.clear();
-        self.packed.extend((0..stacks[0].materials.len()).map(|m| {
-            let four: [Tilted; 4] =
-                std::array::from_fn(|i| Tilted::new(stacks[i].materials[m], setups[i].snell));
-            lanes::Tilted4::gather(four.each_ref())
-        }));
+        let snell = setups.each_ref().map(|s| s.snell);
+        self.packed.extend(
+            (0..stacks[0].materials.len()).map(|m| {
+                lanes::Tilted4::new(std::array::from_fn(|i| stacks[i].materials[m]), snell)
+            }),
+        );
     }
 }
 
