@@ -1,5 +1,6 @@
 //! One merit-plus-gradient evaluation, the optimiser's inner loop: 12 layers × 301
-//! wavelengths at normal incidence, and 60 layers × 301 wavelengths at 45° (s and p).
+//! wavelengths at normal incidence, 60 layers × 301 wavelengths at 45° (s and p), and 10 and
+//! 30 layers × 301 wavelengths at 0° and 45°.
 
 use std::hint::black_box;
 
@@ -18,7 +19,14 @@ fn problem(layers: usize, aoi_deg: f64) -> (Evaluator, Vec<(usize, f64)>) {
 
 fn bench(c: &mut Criterion) {
     let mut g = c.benchmark_group("merit+gradient");
-    for (layers, aoi) in [(12, 0.0), (60, 45.0)] {
+    for (layers, aoi) in [
+        (12, 0.0),
+        (60, 45.0),
+        (10, 0.0),
+        (10, 45.0),
+        (30, 0.0),
+        (30, 45.0),
+    ] {
         let (ev, l) = problem(layers, aoi);
         let mut grad = Vec::new();
         g.bench_function(format!("layers={layers}/wl=301/aoi={aoi}"), |b| {

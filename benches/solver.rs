@@ -1,19 +1,24 @@
 //! Solver speed: {10, 100, 250} layers × {1001, 10001} wavelengths × {0°, 45°}, with dispersive
 //! and absorbing materials, on one thread and on all cores. Throughput is reported in
 //! layer·wavelength elements (s and p together), so ns per element = 1 / throughput. Also the
-//! Monte Carlo tolerances and layer sensitivities of a 30-layer design.
+//! Monte Carlo tolerances and layer sensitivities of a 30-layer design. The optimiser's case,
+//! small stacks over 301 wavelengths with indices evaluated beforehand, with and without the
+//! derivatives for every thickness (`small/…`).
 
 use std::hint::black_box;
 use std::ops::ControlFlow;
 use std::time::Duration;
 
 use criterion::{Criterion, Throughput, criterion_group, criterion_main};
+use num_complex::Complex64;
 use stackwise::analysis::sensitivity::sensitivity;
 use stackwise::analysis::tolerance::{ToleranceSettings, tolerance};
 use stackwise::analysis::{angle_scan, angles_deg, spectrum, wavelengths_nm};
 use stackwise::design::{Pol, Quantity, ResolvedDesign};
 use stackwise::material::{Material, Model};
-use stackwise::optics::Side;
+use stackwise::optics::{
+    Gradient, GradientScratch, Scratch4, Side, StackAt, solve_gradient, solve4,
+};
 
 /// A design of `layers` alternating layers: a dispersive, weakly absorbing high index (a table
 /// with k) and a Sellmeier low index, on a Sellmeier glass. Thicknesses vary per layer
@@ -155,5 +160,78 @@ fn production(c: &mut Criterion) {
     g.finish();
 }
 
-criterion_group!(benches, solver, live, production);
+/// The optimiser's inner loop at the engine: {10, 30} layers × 301 wavelengths at 0° and 45°,
+/// indices evaluated beforehand (a dispersive, absorbing high index and a dispersive low one
+/// on glass), R and T alone (`rt`, four wavelengths per pass) and with the derivatives for
+/// every thickness (`derivatives`, one wavelength per call).
+fn small(c: &mut Criterion) {
+    let wl: Vec<f64> = (0..301).map(|i| 400.0 + 2.0 * f64::from(i)).collect();
+    // Demo dispersion (Cauchy-like, invented for the benchmark).
+    let rows: Vec<[Complex64; 2]> = wl
+        .iter()
+        .map(|&w| {
+            [
+                Complex64::new(2.2 + 30_000.0 / (w * w), 2e-3 * 400.0 / w),
+                Complex64::new(1.45 + 3_000.0 / (w * w), 0.0),
+            ]
+        })
+        .collect();
+    for layers in [10, 30] {
+        let list: Vec<(usize, f64)> = (0..layers)
+            .map(|i| (i % 2, 40.0 + 7.0 * (i % 11) as f64))
+            .collect();
+        let stacks: Vec<StackAt<'_>> = rows
+            .iter()
+            .map(|row| StackAt {
+                incident: Complex64::new(1.0, 0.0),
+                substrate: Complex64::new(1.52, 0.0),
+                exit: Complex64::new(1.0, 0.0),
+                materials: row,
+                layers: &list,
+                back_layers: &[],
+                substrate_mm: None,
+            })
+            .collect();
+        let mut g = c.benchmark_group(format!("small/layers={layers}/wl=301"));
+        g.throughput(Throughput::Elements((layers * wl.len()) as u64));
+        g.sample_size(20).warm_up_time(Duration::from_millis(300));
+        g.measurement_time(Duration::from_secs(1));
+        for aoi_deg in [0.0_f64, 45.0] {
+            let aoi = aoi_deg.to_radians();
+            let mut scratch = Scratch4::default();
+            g.bench_function(format!("aoi={aoi_deg}/rt"), |b| {
+                b.iter(|| {
+                    let mut sum = 0.0;
+                    for first in (0..wl.len()).step_by(4) {
+                        let lanes: [usize; 4] =
+                            std::array::from_fn(|k| (first + k).min(wl.len() - 1));
+                        let four = solve4(
+                            lanes.map(|i| &stacks[i]),
+                            lanes.map(|i| wl[i]),
+                            [aoi; 4],
+                            Side::Front,
+                            &mut scratch,
+                        );
+                        sum += four.iter().map(|r| r.r() + r.t()).sum::<f64>();
+                    }
+                    black_box(sum)
+                });
+            });
+            let (mut grad, mut scratch) = (Gradient::default(), GradientScratch::default());
+            g.bench_function(format!("aoi={aoi_deg}/derivatives"), |b| {
+                b.iter(|| {
+                    let mut sum = 0.0;
+                    for (stack, &w) in stacks.iter().zip(&wl) {
+                        solve_gradient(black_box(stack), w, aoi, &mut scratch, &mut grad);
+                        sum += grad.d_r_s[0] + grad.d_t_p[0];
+                    }
+                    black_box(sum)
+                });
+            });
+        }
+        g.finish();
+    }
+}
+
+criterion_group!(benches, solver, live, production, small);
 criterion_main!(benches);

@@ -15,7 +15,12 @@
 //! * A = 1 − R − T for a coherent stack, so dA = −dR − dT.
 //!
 //! Absorbing layers are scaled by e^(−|Im δ|) above 30 nepers exactly as the solver does; the
-//! formulas above are homogeneous of degree zero in the scale, so it cancels.
+//! formulas above are homogeneous of degree zero in the scale, so it cancels. Long stacks (a
+//! stop band of thousands of layers multiplies [B; C] by a factor per layer) are kept finite
+//! like the solver's: the running [B; C] below each layer and the adjoint rows are brought
+//! back near 1 by powers of two, each scale is remembered as an exponent, and a layer's
+//! derivative is multiplied by 2^(rows + below − top) (dD/D) or 2^(rows + below − 2·top) (dr)
+//! — the scales of what it is formed from, over those of the final [B; C].
 //!
 //! A thick substrate adds the coating seen from inside the substrate (layers in reverse order,
 //! the substrate's complex index as incident medium; the formulas above hold for a complex η₀)
@@ -25,11 +30,12 @@
 //! depend on them). The values themselves come from the same assembly as [`super::solve`].
 //!
 //! Cost per wavelength: about three times one solve; nothing is allocated once the buffers in
-//! [`GradientScratch`] and [`Gradient`] have grown to the layer count.
+//! [`GradientScratch`] and [`Gradient`] have grown to the layer count. The optimiser uses
+//! [`super::solve_gradient4`], the same passes for four wavelengths in SIMD lanes.
 
 use num_complex::Complex64;
 
-use super::tmm::finish;
+use super::tmm::{BIG, SMALL, finish};
 use super::{Amplitudes, Coherent, Response, Setup, Side, StackAt, Tilted, coherent, thick};
 
 const ONE: Complex64 = Complex64::new(1.0, 0.0);
@@ -104,19 +110,53 @@ pub struct GradientScratch {
     mats: Vec<Tilted>,
     /// Per layer in pass order: cos δ and i sin δ (both scaled), and the layer's k₀ q.
     trig: Vec<(Complex64, Complex64, Complex64)>,
-    /// Per layer in pass order: [B; C] below the layer, s then p.
-    below: Vec<[[Complex64; 2]; 2]>,
+    /// Per layer in pass order: [B; C] below the layer, s then p, and the power of two
+    /// taken out of each.
+    below: Vec<([[Complex64; 2]; 2], [i32; 2])>,
     front: Pass,
     inside: Pass,
 }
 
 /// Derivatives of one coherent problem, indexed by deposition order.
 #[derive(Clone, Debug, Default)]
-struct Pass {
-    result: Coherent,
+pub(super) struct Pass {
+    pub(super) result: Coherent,
     /// Per polarisation (s, p): dr per layer and dD/D per layer.
-    dr: [Vec<Complex64>; 2],
-    dd_rel: [Vec<Complex64>; 2],
+    pub(super) dr: [Vec<Complex64>; 2],
+    pub(super) dd_rel: [Vec<Complex64>; 2],
+}
+
+/// Brings `v` back near 1 by a power of two when its largest component has left
+/// [`SMALL`, `BIG`]; the exponent taken out is added to `exp2`.
+fn renorm(v: &mut [Complex64; 2], exp2: &mut i32) {
+    let m = v[0]
+        .re
+        .abs()
+        .max(v[0].im.abs())
+        .max(v[1].re.abs())
+        .max(v[1].im.abs());
+    if m.is_finite() && (m > BIG || (m < SMALL && m > 0.0)) {
+        let k = -(m.log2().floor() as i32);
+        let f = pow2(k);
+        v[0] *= f;
+        v[1] *= f;
+        *exp2 -= k;
+    }
+}
+
+/// 2^k for |k| below 1023.
+fn pow2(k: i32) -> f64 {
+    f64::from_bits(((i64::from(k) + 1023) as u64) << 52)
+}
+
+/// z·2^k without overflow of the factor for |k| up to about 2000 (two steps).
+fn times_pow2(z: Complex64, k: i32) -> Complex64 {
+    if k == 0 {
+        return z;
+    }
+    let k = k.clamp(-2000, 2000);
+    let half = k / 2;
+    z * pow2(half) * pow2(k - half)
 }
 
 /// cos δ and i sin δ of δ = a + i b, scaled by e^(−|b|) when |b| exceeds the limit; returns the
@@ -151,7 +191,7 @@ fn pass(
     reversed: bool,
     k0: f64,
     trig_buf: &mut Vec<(Complex64, Complex64, Complex64)>,
-    below: &mut Vec<[[Complex64; 2]; 2]>,
+    below: &mut Vec<([[Complex64; 2]; 2], [i32; 2])>,
     out: &mut Pass,
 ) {
     let n = layers.len();
@@ -159,13 +199,15 @@ fn pass(
     trig_buf.clear();
     below.clear();
     let mut v = [[ONE, substrate.eta_s], [ONE, substrate.eta_p]];
+    // The true [B; C] of each polarisation is v·2^exps (times the absorbing layers' scale).
+    let mut exps = [0_i32; 2];
     let mut log_scale = 0.0;
     for p in 0..n {
         let (m, d) = layers[at(p)];
         let m = &mats[m];
         let (c, is, ls) = trig(m.q * (k0 * d));
         log_scale += ls;
-        below.push(v);
+        below.push((v, exps));
         trig_buf.push((c, is, m.q * k0));
         for (pol, (eta, inv)) in [(m.eta_s, m.inv_eta_s), (m.eta_p, m.inv_eta_p)]
             .into_iter()
@@ -173,6 +215,7 @@ fn pass(
         {
             let [b, cc] = v[pol];
             v[pol] = [c * b - is * inv * cc, c * cc - is * eta * b];
+            renorm(&mut v[pol], &mut exps[pol]);
         }
     }
     let cos_ratio = (incident.q / incident.n) / (substrate.q / substrate.n);
@@ -186,7 +229,7 @@ fn pass(
             v[pol][1],
             eta_sub[pol],
             t_factor[pol],
-            log_scale,
+            log_scale + f64::from(exps[pol]) * std::f64::consts::LN_2,
         )
     });
     out.result = Coherent {
@@ -202,9 +245,11 @@ fn pass(
         let den = eta0[pol] * b + c;
         let dr_factor = 2.0 * eta0[pol] / (den * den);
         let inv_den = den.inv();
-        // Row vectors for dr (∝ [C, −B]) and for dD ([η₀, 1]), carried down the stack.
-        let mut w1 = [c, -b];
-        let mut w2 = [eta0[pol], ONE];
+        let top = exps[pol];
+        // Row vectors for dr (∝ [C, −B]) and for dD ([η₀, 1]), carried down the stack; the
+        // true rows are w·2^f.
+        let (mut w1, mut f1) = ([c, -b], top);
+        let (mut w2, mut f2) = ([eta0[pol], ONE], 0);
         for p in (0..n).rev() {
             let (cd, is, kq) = trig_buf[p];
             let m = &mats[layers[at(p)].0];
@@ -213,18 +258,24 @@ fn pass(
             } else {
                 (m.eta_p, m.inv_eta_p)
             };
-            let [bb, cb] = below[p][pol];
+            let ([bb, cb], below_exp) = (below[p].0[pol], below[p].1[pol]);
             // (∂M/∂d)·v with −sin δ = i·(i sin δ).
             let x0 = kq * (I * is * bb - I * cd * inv * cb);
             let x1 = kq * (-I * eta * cd * bb + I * is * cb);
             let k = at(p);
-            out.dr[pol][k] = dr_factor * (w1[0] * x0 + w1[1] * x1);
-            out.dd_rel[pol][k] = (w2[0] * x0 + w2[1] * x1) * inv_den;
+            out.dr[pol][k] = times_pow2(
+                dr_factor * (w1[0] * x0 + w1[1] * x1),
+                f1 + below_exp - 2 * top,
+            );
+            out.dd_rel[pol][k] =
+                times_pow2((w2[0] * x0 + w2[1] * x1) * inv_den, f2 + below_exp - top);
             // w ← w·M_p
             let step =
                 |w: [Complex64; 2]| [w[0] * cd - w[1] * eta * is, -w[0] * is * inv + w[1] * cd];
             w1 = step(w1);
             w2 = step(w2);
+            renorm(&mut w1, &mut f1);
+            renorm(&mut w2, &mut f2);
         }
     }
 }
@@ -276,18 +327,8 @@ pub fn solve_gradient(
         below,
         front,
     );
-    let n = stack.layers.len();
-    out.resize(n);
-    let Some(substrate_mm) = stack.substrate_mm else {
-        out.response = setup.assemble(
-            stack,
-            wavelength_nm,
-            Side::Front,
-            &[Some(front.result), None, None, None],
-        );
-        for k in 0..n {
-            fill(out, front, k, None);
-        }
+    let Some(_) = stack.substrate_mm else {
+        finish_gradient(stack, &setup, wavelength_nm, front, None, out);
         return;
     };
     let (bi, bs) = &setup.front_in;
@@ -310,6 +351,42 @@ pub fn solve_gradient(
         cs,
         wavelength_nm,
     );
+    finish_gradient(
+        stack,
+        &setup,
+        wavelength_nm,
+        front,
+        Some((inside, back_in)),
+        out,
+    );
+}
+
+/// The response and the layer derivatives of one point from its passes: `front` (the coating
+/// from the incident medium) and, for a thick substrate, `thick` = (the coating seen from
+/// inside the substrate, the back face seen from inside), chained through the incoherent
+/// combination.
+pub(super) fn finish_gradient(
+    stack: &StackAt<'_>,
+    setup: &Setup,
+    wavelength_nm: f64,
+    front: &Pass,
+    thick: Option<(&Pass, Coherent)>,
+    out: &mut Gradient,
+) {
+    let n = stack.layers.len();
+    out.resize(n);
+    let (Some(substrate_mm), Some((inside, back_in))) = (stack.substrate_mm, thick) else {
+        out.response = setup.assemble(
+            stack,
+            wavelength_nm,
+            Side::Front,
+            &[Some(front.result), None, None, None],
+        );
+        for k in 0..n {
+            fill(out, front, k, None);
+        }
+        return;
+    };
     out.response = setup.assemble(
         stack,
         wavelength_nm,
@@ -340,7 +417,7 @@ pub fn solve_gradient(
         }
     });
     for k in 0..n {
-        fill(out, front, k, Some((&*inside, partials)));
+        fill(out, front, k, Some((inside, partials)));
     }
 }
 
@@ -574,5 +651,70 @@ mod tests {
             g.d_r_s[1],
             fd[0]
         );
+    }
+
+    /// A stack of 4000 quarter-wave layers in its stop band under four absorbing and
+    /// dielectric layers: the product of the layer matrices grows by about (2.35/1.38)² per
+    /// pair, some e^2000 over the stack, far beyond the largest double, so without the
+    /// rescaling [B; C] and the adjoint rows overflow. Every derivative must be finite and
+    /// those of the top layers (which matter: the absorbing layers over a near-perfect
+    /// mirror) and of a few deep ones (vanishingly small) must agree with central
+    /// differences of the overflow-safe solver, with and without a thick substrate.
+    #[test]
+    fn thousands_of_layers_stay_finite() {
+        let materials = [
+            Complex64::new(2.35, 0.0),
+            Complex64::new(1.38, 0.0),
+            Complex64::new(2.0, 0.3),
+        ];
+        let (wl, aoi) = (550.0, 30f64.to_radians());
+        let mut layers: Vec<(usize, f64)> = (0..4000)
+            .map(|i| {
+                let m = i % 2;
+                (
+                    m,
+                    550.0 / (4.0 * materials[m].re) * (1.0 + 0.01 * (i % 7) as f64),
+                )
+            })
+            .collect();
+        layers.extend([(2, 12.0), (1, 80.0), (2, 7.0), (0, 40.0)]);
+        let n = layers.len();
+        let (mut g, mut scratch) = (Gradient::default(), GradientScratch::default());
+        for substrate_mm in [None, Some(1.0)] {
+            let stack = StackAt {
+                incident: Complex64::new(1.0, 0.0),
+                substrate: Complex64::new(1.52, 0.0),
+                exit: Complex64::new(1.0, 0.0),
+                materials: &materials,
+                layers: &layers,
+                back_layers: &[],
+                substrate_mm,
+            };
+            solve_gradient(&stack, wl, aoi, &mut scratch, &mut g);
+            let value = solve(&stack, wl, aoi, Side::Front, &mut Vec::new());
+            assert!(
+                (g.response.r_s - value.r_s).abs() < 1e-12
+                    && (g.response.r_p - value.r_p).abs() < 1e-12,
+                "{substrate_mm:?}: values agree with solve"
+            );
+            for v in [&g.d_r_s, &g.d_r_p, &g.d_t_s, &g.d_t_p] {
+                assert!(v.iter().all(|x| x.is_finite()), "{substrate_mm:?}: finite");
+            }
+            let mut largest = 0.0_f64;
+            for k in [0, 1, 2000, n - 8, n - 5, n - 4, n - 3, n - 2, n - 1] {
+                let fd = central(&stack, wl, aoi, k, 1e-3);
+                let an = [g.d_r_s[k], g.d_r_p[k], g.d_t_s[k], g.d_t_p[k]];
+                for q in 0..4 {
+                    assert!(
+                        (an[q] - fd[q]).abs() < 1e-8,
+                        "{substrate_mm:?} layer {k} quantity {q}: analytic {} vs central {}",
+                        an[q],
+                        fd[q]
+                    );
+                    largest = largest.max(an[q].abs());
+                }
+            }
+            assert!(largest > 1e-4, "{substrate_mm:?}: the top layers matter");
+        }
     }
 }

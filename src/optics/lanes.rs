@@ -3,41 +3,49 @@
 //! always scaled by e^(−Im δ) (so no division is needed), every few layers the running
 //! [B; C] of each lane is brought back near 1 by a power of two (so long stacks in a stop band
 //! cannot overflow), and both scales are carried as logarithms to the end.
+//!
+//! The loop is compiled once per instruction set ([`super::simd`]) and the best one the
+//! processor has is chosen at run time; every version rounds identically.
+
+#![allow(
+    clippy::inline_always,
+    reason = "the lane code must be inlined into each instruction set's version to use it"
+)]
 
 use num_complex::Complex64;
-use wide::f64x4;
 
+use super::simd::{self, F4, Level};
 use super::tmm::{BIG, Coherent, RENORM_EVERY, SMALL, Tilted, finish, renorm_factor};
 
 /// Four complex numbers, real and imaginary parts in separate lanes.
 #[derive(Clone, Copy, Debug)]
 pub(crate) struct Cx4 {
-    re: f64x4,
-    im: f64x4,
+    pub(crate) re: F4,
+    pub(crate) im: F4,
 }
 
 impl Cx4 {
-    fn gather(z: [Complex64; 4]) -> Self {
+    pub(crate) fn gather(z: [Complex64; 4]) -> Self {
         Self {
-            re: f64x4::from(z.map(|z| z.re)),
-            im: f64x4::from(z.map(|z| z.im)),
+            re: F4(z.map(|z| z.re)),
+            im: F4(z.map(|z| z.im)),
         }
     }
 
-    fn lane(self, i: usize) -> Complex64 {
-        Complex64::new(self.re.to_array()[i], self.im.to_array()[i])
+    pub(crate) fn lane(self, i: usize) -> Complex64 {
+        Complex64::new(self.re.0[i], self.im.0[i])
     }
 
-    #[inline]
-    fn mul(self, o: Self) -> Self {
+    #[inline(always)]
+    pub(crate) fn mul(self, o: Self) -> Self {
         Self {
             re: self.re * o.re - self.im * o.im,
             im: self.re * o.im + self.im * o.re,
         }
     }
 
-    #[inline]
-    fn sub(self, o: Self) -> Self {
+    #[inline(always)]
+    pub(crate) fn sub(self, o: Self) -> Self {
         Self {
             re: self.re - o.re,
             im: self.im - o.im,
@@ -45,34 +53,117 @@ impl Cx4 {
     }
 }
 
+/// `a` if `c`, else `b` (a select, not a branch).
+#[inline(always)]
+fn pick(c: bool, a: f64, b: f64) -> f64 {
+    if c { a } else { b }
+}
+
+/// 1/z lane by lane.
+#[inline(always)]
+pub(crate) fn inv(z: Cx4) -> Cx4 {
+    let n = z.re * z.re + z.im * z.im;
+    let r = F4::ONE.zip(n, |a, b| a / b);
+    Cx4 {
+        re: z.re * r,
+        im: -(z.im * r),
+    }
+}
+
 /// Rescales each lane's [B; C] by a power of two when it has left [`SMALL`, `BIG`] (rare: a
 /// quick test of all lanes first); the natural logarithm taken out is added to `log_norm`.
-fn renorm4(b: &mut Cx4, c: &mut Cx4, log_norm: &mut f64x4) {
-    let m = b.re.abs().max(b.im.abs()).max(c.re.abs()).max(c.im.abs());
-    if !(m.simd_gt(f64x4::splat(BIG)) | m.simd_lt(f64x4::splat(SMALL))).any() {
-        return;
+#[inline(always)]
+fn renorm4(b: &mut Cx4, c: &mut Cx4, log_norm: &mut F4) {
+    let m = b.re.abs().max(b.im.abs()).max(c.re.abs().max(c.im.abs()));
+    if m.any_outside(SMALL, BIG) {
+        rescale4(b, c, log_norm, m);
     }
-    let f = m.to_array().map(|m| renorm_factor(m).unwrap_or(1.0));
-    let fv = f64x4::from(f);
+}
+
+/// The rare part of [`renorm4`], kept out of line.
+#[cold]
+#[inline(never)]
+fn rescale4(b: &mut Cx4, c: &mut Cx4, log_norm: &mut F4, m: F4) {
+    let f = F4(m.0.map(|m| renorm_factor(m).unwrap_or(1.0)));
     for x in [&mut b.re, &mut b.im, &mut c.re, &mut c.im] {
-        *x *= fv;
+        *x = *x * f;
     }
-    *log_norm -= f64x4::from(f.map(f64::ln));
+    *log_norm -= f.map(f64::ln);
 }
 
 /// A medium at four points: q and the admittances per lane.
 #[derive(Clone, Copy, Debug)]
 pub(crate) struct Tilted4 {
-    q: Cx4,
-    eta_s: Cx4,
-    inv_eta_s: Cx4,
-    eta_p: Cx4,
-    inv_eta_p: Cx4,
+    pub(crate) q: Cx4,
+    pub(crate) eta_s: Cx4,
+    pub(crate) inv_eta_s: Cx4,
+    pub(crate) eta_p: Cx4,
+    pub(crate) inv_eta_p: Cx4,
     /// q is real in every lane: the layer neither absorbs nor is evanescent (no exp needed).
-    real: bool,
+    pub(crate) real: bool,
 }
 
 impl Tilted4 {
+    /// Tilts four indices for four Snell invariants at once: [`Tilted::new`] lane by lane,
+    /// branch-free (both roots are formed and the right one chosen), so it vectorises.
+    pub(crate) fn new(n: [Complex64; 4], snell: [f64; 4]) -> Self {
+        let (nr, ni) = (F4(n.map(|z| z.re)), F4(n.map(|z| z.im)));
+        let s = F4(snell);
+        let n2 = Cx4 {
+            re: nr * nr - ni * ni,
+            im: nr * ni + ni * nr,
+        };
+        let (u, v) = (n2.re - s * s, n2.im);
+        let m = (u * u + v * v).map(f64::sqrt);
+        let half = F4::splat(0.5);
+        let t_pos = (half * (m + u)).map(f64::sqrt);
+        let t_neg = (half * (m - u)).map(f64::sqrt);
+        let two = F4::splat(2.0);
+        let div = |a: F4, b: F4| a.zip(b, |a, b| a / b);
+        // The principal root (see `tmm::principal_sqrt`), then the decaying branch.
+        let re_pos = t_pos;
+        let im_pos = div(v, two * t_pos);
+        let re_neg = div(v.abs(), two * t_neg);
+        let im_neg = t_neg.zip(v, f64::copysign);
+        let mut q = Cx4 {
+            re: F4(std::array::from_fn(|i| {
+                pick(
+                    m.0[i] == 0.0,
+                    0.0,
+                    pick(u.0[i] >= 0.0, re_pos.0[i], re_neg.0[i]),
+                )
+            })),
+            im: F4(std::array::from_fn(|i| {
+                pick(
+                    m.0[i] == 0.0,
+                    v.0[i],
+                    pick(u.0[i] >= 0.0, im_pos.0[i], im_neg.0[i]),
+                )
+            })),
+        };
+        for i in 0..4 {
+            let (re, im) = (q.re.0[i], q.im.0[i]);
+            let flip = im < 0.0 || (im == 0.0 && re < 0.0);
+            let (re, im) = (pick(flip, -re, re), pick(flip, -im, im));
+            // Exactly at a critical angle: a tiny q, as in `Tilted::new`.
+            let tiny = re * re + im * im < 1e-300;
+            q.re.0[i] = pick(tiny, 0.0, re);
+            q.im.0[i] = pick(tiny, 1e-150, im);
+        }
+        let inv_q = inv(q);
+        let inv_n2 = inv(n2);
+        Self {
+            q,
+            eta_s: q,
+            inv_eta_s: inv_q,
+            eta_p: n2.mul(inv_q),
+            inv_eta_p: q.mul(inv_n2),
+            real: q.im.0.iter().all(|&x| x == 0.0),
+        }
+    }
+
+    /// Four tilted media as lanes (the tests build stacks this way).
+    #[cfg(test)]
     pub(crate) fn gather(t: [&Tilted; 4]) -> Self {
         Self {
             q: Cx4::gather(t.map(|t| t.q)),
@@ -86,23 +177,100 @@ impl Tilted4 {
 }
 
 /// [`super::coherent`] for four points: `incident`, `substrate` and each layer's medium are
-/// given per lane, the thicknesses are shared.
+/// given per lane, the thicknesses are shared. Runs in the best instruction set available.
 pub(crate) fn coherent4<'a>(
     incident: [&Tilted; 4],
     layers: impl Iterator<Item = (&'a Tilted4, f64)>,
     substrate: [&Tilted; 4],
     wavelength_nm: [f64; 4],
 ) -> [Coherent; 4] {
-    let k0 = f64x4::from(wavelength_nm.map(|w| std::f64::consts::TAU / w));
+    coherent4_at(Level::best(), incident, layers, substrate, wavelength_nm)
+}
+
+/// [`coherent4`] in a chosen instruction set (tests compare them).
+pub(crate) fn coherent4_at<'a>(
+    level: Level,
+    incident: [&Tilted; 4],
+    layers: impl Iterator<Item = (&'a Tilted4, f64)>,
+    substrate: [&Tilted; 4],
+    wavelength_nm: [f64; 4],
+) -> [Coherent; 4] {
+    let eta_sub = [
+        Cx4::gather(substrate.map(|t| t.eta_s)),
+        Cx4::gather(substrate.map(|t| t.eta_p)),
+    ];
+    let k0 = F4(wavelength_nm.map(|w| std::f64::consts::TAU / w));
+    let (bc, log_s, log_p) = simd::run_at(
+        level,
+        Product {
+            layers,
+            eta_sub,
+            k0,
+        },
+    );
+    let [(bs, cs), (bp, cp)] = bc;
+    std::array::from_fn(|i| {
+        let (inc, sub) = (incident[i], substrate[i]);
+        let cos_ratio = (inc.q / inc.n) / (sub.q / sub.n);
+        Coherent {
+            s: finish(
+                inc.eta_s,
+                bs.lane(i),
+                cs.lane(i),
+                sub.eta_s,
+                Complex64::ONE,
+                log_s.0[i],
+            ),
+            p: finish(
+                inc.eta_p,
+                bp.lane(i),
+                cp.lane(i),
+                sub.eta_p,
+                cos_ratio,
+                log_p.0[i],
+            ),
+        }
+    })
+}
+
+/// [`product4`] as an operation for [`simd::run_at`].
+struct Product<I> {
+    layers: I,
+    eta_sub: [Cx4; 2],
+    k0: F4,
+}
+
+impl<'a, I: Iterator<Item = (&'a Tilted4, f64)>> pulp::WithSimd for Product<I> {
+    type Output = ([(Cx4, Cx4); 2], F4, F4);
+
+    #[inline(always)]
+    fn with_simd<S: pulp::Simd>(self, _simd: S) -> Self::Output {
+        product4(self.layers, self.eta_sub, self.k0)
+    }
+}
+
+/// [B; C] for s and p after all `layers`, starting from [1; η_sub], and the natural logarithm
+/// of the scale taken out of each (s, p). Always inlined, so it is compiled for the caller's
+/// instruction set.
+#[inline(always)]
+#[allow(
+    clippy::type_complexity,
+    reason = "two polarisations of [B; C] and their scales, unpacked by the one caller"
+)]
+fn product4<'a>(
+    layers: impl Iterator<Item = (&'a Tilted4, f64)>,
+    eta_sub: [Cx4; 2],
+    k0: F4,
+) -> ([(Cx4, Cx4); 2], F4, F4) {
     let one = Cx4 {
-        re: f64x4::ONE,
-        im: f64x4::ZERO,
+        re: F4::ONE,
+        im: F4::ZERO,
     };
-    let half = f64x4::splat(0.5);
-    let (mut bs, mut cs) = (one, Cx4::gather(substrate.map(|t| t.eta_s)));
-    let (mut bp, mut cp) = (one, Cx4::gather(substrate.map(|t| t.eta_p)));
-    let mut log_scale = f64x4::ZERO;
-    let (mut norm_s, mut norm_p) = (f64x4::ZERO, f64x4::ZERO);
+    let half = F4::splat(0.5);
+    let (mut bs, mut cs) = (one, eta_sub[0]);
+    let (mut bp, mut cp) = (one, eta_sub[1]);
+    let mut log_scale = F4::ZERO;
+    let (mut norm_s, mut norm_p) = (F4::ZERO, F4::ZERO);
     let mut since_renorm = 0;
     for (m, d_nm) in layers {
         since_renorm += 1;
@@ -111,13 +279,13 @@ pub(crate) fn coherent4<'a>(
             renorm4(&mut bs, &mut cs, &mut norm_s);
             renorm4(&mut bp, &mut cp, &mut norm_p);
         }
-        let kd = k0 * f64x4::splat(d_nm);
+        let kd = k0 * F4::splat(d_nm);
         let a = m.q.re * kd;
         let (sin_a, cos_a) = a.sin_cos();
         if m.real {
             // Lossless and propagating: cos δ and the admittances are real, i sin δ is
             // imaginary, so each complex product is two real ones.
-            let rotate = |b: Cx4, c: Cx4, eta: f64x4, inv_eta: f64x4| {
+            let rotate = |b: Cx4, c: Cx4, eta: F4, inv_eta: F4| {
                 let (u, v) = (sin_a * inv_eta, sin_a * eta);
                 let b2 = Cx4 {
                     re: cos_a * b.re + u * c.im,
@@ -138,7 +306,7 @@ pub(crate) fn coherent4<'a>(
         let em = (-b).exp();
         let em2 = em * em;
         log_scale += b;
-        let (ch, sh) = ((f64x4::ONE + em2) * half, (f64x4::ONE - em2) * half);
+        let (ch, sh) = ((F4::ONE + em2) * half, (F4::ONE - em2) * half);
         // cos(a + ib) = cos a cosh b − i sin a sinh b; i sin(a + ib) = −cos a sinh b + i sin a cosh b
         let cos_d = Cx4 {
             re: cos_a * ch,
@@ -155,30 +323,166 @@ pub(crate) fn coherent4<'a>(
     }
     renorm4(&mut bs, &mut cs, &mut norm_s);
     renorm4(&mut bp, &mut cp, &mut norm_p);
-    let (log_s, log_p) = (
-        (log_scale + norm_s).to_array(),
-        (log_scale + norm_p).to_array(),
-    );
-    std::array::from_fn(|i| {
-        let (inc, sub) = (incident[i], substrate[i]);
-        let cos_ratio = (inc.q / inc.n) / (sub.q / sub.n);
-        Coherent {
-            s: finish(
-                inc.eta_s,
-                bs.lane(i),
-                cs.lane(i),
-                sub.eta_s,
-                Complex64::ONE,
-                log_s[i],
-            ),
-            p: finish(
-                inc.eta_p,
-                bp.lane(i),
-                cp.lane(i),
-                sub.eta_p,
-                cos_ratio,
-                log_p[i],
-            ),
+    ([(bs, cs), (bp, cp)], log_scale + norm_s, log_scale + norm_p)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::optics::coherent;
+
+    /// A small xorshift generator: reproducible random stacks without a dependency.
+    struct Rng(u64);
+
+    impl Rng {
+        fn next(&mut self) -> f64 {
+            self.0 ^= self.0 << 13;
+            self.0 ^= self.0 >> 7;
+            self.0 ^= self.0 << 17;
+            (self.0 >> 11) as f64 / (1u64 << 53) as f64
         }
-    })
+
+        fn range(&mut self, lo: f64, hi: f64) -> f64 {
+            lo + (hi - lo) * self.next()
+        }
+    }
+
+    /// Every quantity of a coherent result, for comparisons.
+    fn numbers(c: &Coherent) -> [f64; 14] {
+        let [s, p] = [c.s, c.p];
+        [
+            s.reflectance,
+            s.transmittance,
+            s.absorptance,
+            s.r.re,
+            s.r.im,
+            s.t.re,
+            s.t.im,
+            p.reflectance,
+            p.transmittance,
+            p.absorptance,
+            p.r.re,
+            p.r.im,
+            p.t.re,
+            p.t.im,
+        ]
+    }
+
+    /// The version for the widest instruction set this processor has against the portable
+    /// one, on random absorbing stacks at oblique incidence (four wavelengths per call), and
+    /// both against the one-point solver. Where the processor has AVX2 and FMA, the wide
+    /// version must be the one chosen, so the comparison is not of one version with itself.
+    #[test]
+    fn instruction_sets_agree() {
+        #[cfg(any(target_arch = "x86", target_arch = "x86_64"))]
+        if std::arch::is_x86_feature_detected!("avx2") && std::arch::is_x86_feature_detected!("fma")
+        {
+            assert_eq!(Level::best(), Level::Avx2, "the AVX2 loop is chosen");
+        }
+        let best = Level::best();
+        let mut rng = Rng(0x5851_f42d_4c95_7f2d);
+        let mut worst = 0.0_f64;
+        let mut compared = 0;
+        for case in 0..40 {
+            let snell = rng.range(0.0, 0.95);
+            let materials: Vec<[Tilted; 4]> = (0..4)
+                .map(|_| {
+                    let n = Complex64::new(rng.range(1.3, 2.6), rng.range(0.0, 0.4));
+                    std::array::from_fn(|i| {
+                        // Slightly different index per lane, as with dispersion.
+                        Tilted::new(n * (1.0 + 0.01 * i as f64), snell)
+                    })
+                })
+                .collect();
+            let packed: Vec<Tilted4> = materials
+                .iter()
+                .map(|l| Tilted4::gather(l.each_ref()))
+                .collect();
+            // Up to 60 layers so the every-8-layers rescaling check runs too.
+            let n = 1 + (rng.next() * 60.0) as usize;
+            let layers: Vec<(usize, f64)> = (0..n)
+                .map(|_| ((rng.next() * 4.0) as usize % 4, rng.range(5.0, 400.0)))
+                .collect();
+            let inc = Tilted::new(Complex64::new(1.0, 0.0), snell);
+            let sub = Tilted::new(Complex64::new(rng.range(1.4, 1.9), 0.0), snell);
+            let wl: [f64; 4] = std::array::from_fn(|_| rng.range(350.0, 1200.0));
+            let run = |level| {
+                let it = layers.iter().map(|&(m, d)| (&packed[m], d));
+                coherent4_at(level, [&inc; 4], it, [&sub; 4], wl)
+            };
+            let (portable, wide) = (run(Level::Portable), run(best));
+            for i in 0..4 {
+                let one = coherent(
+                    &inc,
+                    layers.iter().map(|&(m, d)| (&materials[m][i], d)),
+                    &sub,
+                    wl[i],
+                );
+                let (a, b, c) = (numbers(&portable[i]), numbers(&wide[i]), numbers(&one));
+                for q in 0..a.len() {
+                    assert!(a[q].is_finite(), "case {case} lane {i}: finite");
+                    worst = worst.max((a[q] - b[q]).abs());
+                    assert!(
+                        (a[q] - b[q]).abs() < 1e-13,
+                        "case {case} lane {i} quantity {q}: portable {} vs {best:?} {}",
+                        a[q],
+                        b[q]
+                    );
+                    assert!(
+                        (a[q] - c[q]).abs() < 1e-10,
+                        "case {case} lane {i} quantity {q}: four lanes {} vs one point {}",
+                        a[q],
+                        c[q]
+                    );
+                    compared += 1;
+                }
+            }
+        }
+        assert!(
+            compared > 2000,
+            "compared {compared} numbers, worst {worst}"
+        );
+    }
+
+    /// Tilting four lanes at once against [`Tilted::new`] one by one: absorbing, lossless,
+    /// evanescent (beyond the critical angle) and exactly critical media.
+    #[test]
+    fn tilting_in_lanes_agrees_with_one_medium() {
+        let mut rng = Rng(0x9e37_79b9_7f4a_7c15);
+        let fields = |t: &Tilted| [t.q, t.eta_s, t.eta_p, t.inv_eta_s, t.inv_eta_p];
+        for case in 0..200 {
+            let n: [Complex64; 4] = std::array::from_fn(|i| match (case + i) % 4 {
+                0 => Complex64::new(rng.range(1.0, 3.0), rng.range(0.0, 2.0)),
+                1 => Complex64::new(rng.range(0.05, 1.0), rng.range(1.0, 8.0)),
+                2 => Complex64::new(rng.range(1.0, 2.0), 0.0),
+                _ => Complex64::new(1.0, 0.0),
+            });
+            let snell: [f64; 4] = std::array::from_fn(|i| match (case + i) % 5 {
+                // Exactly critical for the transparent index 1.0.
+                0 => 1.0,
+                _ => rng.range(0.0, 1.9),
+            });
+            let four = Tilted4::new(n, snell);
+            for i in 0..4 {
+                let one = Tilted::new(n[i], snell[i]);
+                let lanes = [
+                    four.q.lane(i),
+                    four.eta_s.lane(i),
+                    four.eta_p.lane(i),
+                    four.inv_eta_s.lane(i),
+                    four.inv_eta_p.lane(i),
+                ];
+                for (k, (a, b)) in lanes.iter().zip(fields(&one)).enumerate() {
+                    assert!(
+                        (a - b).norm() <= 1e-13 * (1.0 + b.norm()),
+                        "case {case} lane {i} field {k}: {a} vs {b} (n {}, S {})",
+                        n[i],
+                        snell[i]
+                    );
+                }
+            }
+            let all_real = (0..4).all(|i| Tilted::new(n[i], snell[i]).q.im == 0.0);
+            assert_eq!(four.real, all_real, "case {case}: lossless flag");
+        }
+    }
 }

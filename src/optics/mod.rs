@@ -38,11 +38,14 @@
 
 pub mod field;
 pub mod gradient;
+mod gradient4;
 mod lanes;
+mod simd;
 pub mod thick;
 mod tmm;
 
 pub use gradient::{Gradient, GradientScratch, solve_gradient};
+pub use gradient4::{GradientScratch4, solve_gradient4};
 pub use thick::{Face, combine};
 pub use tmm::{Amplitudes, Coherent, Tilted, coherent};
 
@@ -129,7 +132,9 @@ impl Response {
 }
 
 /// The media of the coherent problems one point needs, for one Snell invariant: each is
-/// (incident medium, exit medium) of one coherent sub-problem.
+/// (incident medium, exit medium) of one coherent sub-problem. Only the problems the point
+/// needs are tilted (the others hold a placeholder).
+#[derive(Clone, Copy, Debug)]
 struct Setup {
     snell: f64,
     /// The coating seen from the incident medium (light from the front).
@@ -156,6 +161,12 @@ impl Setup {
         };
         let snell = from.re * aoi_rad.sin();
         let thick = stack.substrate_mm.is_some();
+        let need = [
+            side == Side::Front,
+            side == Side::Back || thick,
+            thick,
+            thick && side == Side::Back,
+        ];
         // A thick substrate keeps its complex index in every sub-problem; a semi-infinite one
         // that the light starts in counts as transparent.
         let sub_inside = if thick {
@@ -164,19 +175,25 @@ impl Setup {
             real(stack.substrate)
         };
         let tilt = |n: Complex64| Tilted::new(n, snell);
-        let (sub, exit_real) = (tilt(stack.substrate), tilt(real(stack.exit)));
+        let sub = tilt(stack.substrate);
+        let unused = (sub, sub);
+        let pair = |i: usize, make: &dyn Fn() -> (Tilted, Tilted)| {
+            if need[i] { make() } else { unused }
+        };
         Self {
             snell,
-            front_out: (tilt(real(stack.incident)), sub),
-            front_in: (tilt(sub_inside), tilt(stack.incident)),
-            back_in: (sub, tilt(stack.exit)),
-            back_out: (exit_real, sub),
-            need: [
-                side == Side::Front,
-                side == Side::Back || thick,
-                thick,
-                thick && side == Side::Back,
-            ],
+            front_out: pair(0, &|| (tilt(real(stack.incident)), sub)),
+            front_in: pair(1, &|| {
+                let inside = if sub_inside == stack.substrate {
+                    sub
+                } else {
+                    tilt(sub_inside)
+                };
+                (inside, tilt(stack.incident))
+            }),
+            back_in: pair(2, &|| (sub, tilt(stack.exit))),
+            back_out: pair(3, &|| (tilt(real(stack.exit)), sub)),
+            need,
         }
     }
 
@@ -294,11 +311,55 @@ enum Order {
 /// [`Setup`], the order of its layers, and the layers.
 type Problem<'a> = (fn(&Setup) -> &(Tilted, Tilted), Order, &'a [(usize, f64)]);
 
+/// The media of four points tilted for their angles: everything [`solve4`] computes before
+/// its layer loop. It depends on the indices, the angles and the side, not on the layers, so
+/// a caller that solves the same points for many thicknesses (the optimiser) builds it once
+/// and calls [`solve4_with`] and [`solve_gradient4`].
+#[derive(Clone, Debug)]
+pub struct Media4 {
+    side: Side,
+    setups: [Setup; 4],
+    /// Each layer material in four lanes.
+    packed: Vec<lanes::Tilted4>,
+}
+
+impl Media4 {
+    /// Tilts the media of `stacks` (which must share their number of materials) for the
+    /// angles `aoi_rad` (radians, in the medium the light arrives from).
+    #[must_use]
+    pub fn new(stacks: [&StackAt<'_>; 4], aoi_rad: [f64; 4], side: Side) -> Self {
+        let mut media = Self {
+            side,
+            setups: std::array::from_fn(|i| Setup::new(stacks[i], aoi_rad[i], side)),
+            packed: Vec::new(),
+        };
+        media.tilt_materials(stacks);
+        media
+    }
+
+    /// [`Media4::new`] into existing buffers.
+    fn refill(&mut self, stacks: [&StackAt<'_>; 4], aoi_rad: [f64; 4], side: Side) {
+        self.side = side;
+        self.setups = std::array::from_fn(|i| Setup::new(stacks[i], aoi_rad[i], side));
+        self.tilt_materials(stacks);
+    }
+
+    fn tilt_materials(&mut self, stacks: [&StackAt<'_>; 4]) {
+        let setups = &self.setups;
+        self.packed.clear();
+        let snell = setups.each_ref().map(|s| s.snell);
+        self.packed.extend(
+            (0..stacks[0].materials.len()).map(|m| {
+                lanes::Tilted4::new(std::array::from_fn(|i| stacks[i].materials[m]), snell)
+            }),
+        );
+    }
+}
+
 /// Reusable buffers for [`solve4`].
 #[derive(Debug, Default)]
 pub struct Scratch4 {
-    lanes: Vec<[Tilted; 4]>,
-    packed: Vec<lanes::Tilted4>,
+    media: Option<Media4>,
 }
 
 /// [`solve`] for four points at once in SIMD lanes — four wavelengths of a spectrum or four
@@ -312,22 +373,27 @@ pub fn solve4(
     side: Side,
     scratch: &mut Scratch4,
 ) -> [Response; 4] {
-    let setups: [Setup; 4] = std::array::from_fn(|i| Setup::new(stacks[i], aoi_rad[i], side));
+    let media = match &mut scratch.media {
+        Some(media) => {
+            media.refill(stacks, aoi_rad, side);
+            media
+        }
+        None => scratch.media.insert(Media4::new(stacks, aoi_rad, side)),
+    };
+    solve4_with(media, stacks, wavelength_nm)
+}
+
+/// [`solve4`] with the media tilted beforehand: `media` from [`Media4::new`] with these
+/// stacks' indices (the layers may change between calls).
+#[must_use]
+pub fn solve4_with(
+    media: &Media4,
+    stacks: [&StackAt<'_>; 4],
+    wavelength_nm: [f64; 4],
+) -> [Response; 4] {
+    let (setups, side) = (&media.setups, media.side);
+    let mats: &[lanes::Tilted4] = &media.packed;
     let layers = stacks[0].layers;
-    scratch.lanes.clear();
-    scratch
-        .lanes
-        .extend((0..stacks[0].materials.len()).map(|m| {
-            std::array::from_fn(|i| Tilted::new(stacks[i].materials[m], setups[i].snell))
-        }));
-    scratch.packed.clear();
-    scratch.packed.extend(
-        scratch
-            .lanes
-            .iter()
-            .map(|l| lanes::Tilted4::gather(l.each_ref())),
-    );
-    let mats: &[lanes::Tilted4] = &scratch.packed;
     let problems: [Problem<'_>; 4] = [
         (|s| &s.front_out, Order::Deposition, layers),
         (|s| &s.front_in, Order::Reversed, layers),

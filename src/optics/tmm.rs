@@ -67,7 +67,7 @@ impl Tilted {
     #[must_use]
     pub fn new(n: Complex64, snell: f64) -> Self {
         let n2 = n * n;
-        let mut q = (n2 - snell * snell).sqrt();
+        let mut q = principal_sqrt(n2 - snell * snell);
         if q.im < 0.0 || (q.im == 0.0 && q.re < 0.0) {
             q = -q;
         }
@@ -83,8 +83,27 @@ impl Tilted {
             eta_s: q,
             eta_p,
             inv_eta_s: q.inv(),
-            inv_eta_p: eta_p.inv(),
+            inv_eta_p: q / n2,
         }
+    }
+}
+
+/// The principal square root of `w` by the algebraic formula: two real square roots and a
+/// division, no polar form (which costs an arctangent and a sine and cosine). Accurate to a
+/// few ulp: the root is taken of |w| ± Re w with the sign that does not cancel.
+fn principal_sqrt(w: Complex64) -> Complex64 {
+    let (u, v) = (w.re, w.im);
+    // |w|² cannot overflow for the indices a design allows (|N²| ≤ 1e8 or so).
+    let m = (u * u + v * v).sqrt();
+    if m == 0.0 {
+        return Complex64::new(0.0, v);
+    }
+    if u >= 0.0 {
+        let t = (0.5 * (m + u)).sqrt();
+        Complex64::new(t, v / (2.0 * t))
+    } else {
+        let t = (0.5 * (m - u)).sqrt();
+        Complex64::new(v.abs() / (2.0 * t), t.copysign(v))
     }
 }
 
@@ -237,6 +256,11 @@ pub(crate) fn finish(
     let (transmittance, absorptance, scale) = if log_scale == 0.0 {
         let t = four * eta_sub.re;
         (t, four * ((b * c.conj()).re - eta_sub.re), 1.0)
+    } else if log_scale.abs() < 150.0 && (1e-150..1e150).contains(&den2) {
+        // Both factors are far from overflow and underflow: one exponential.
+        let scale = (-log_scale).exp();
+        let t = four * eta_sub.re * (scale * scale);
+        (t, four * (b * c.conj()).re - t, scale)
     } else {
         let x = 4.0 * eta0 * eta_sub.re;
         let t = x.signum() * (x.abs().ln() - 2.0 * log_scale - den2.ln()).exp();
@@ -266,6 +290,9 @@ fn finish_absorbing(
     let four = 4.0 * eta0.norm_sqr() / den2;
     let (transmittance, scale) = if log_scale == 0.0 {
         (four * eta_sub.re, 1.0)
+    } else if log_scale.abs() < 150.0 && (1e-150..1e150).contains(&den2.abs()) {
+        let scale = (-log_scale).exp();
+        (four * eta_sub.re * (scale * scale), scale)
     } else {
         let x = 4.0 * eta0.norm_sqr() * eta_sub.re;
         let t =

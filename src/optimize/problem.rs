@@ -1,6 +1,9 @@
 //! The precomputed optimisation problem: every material's index at every target wavelength
-//! (evaluated once per run), the target samples grouped by (angle, wavelength), and the merit,
-//! residuals and derivatives of a layer list.
+//! and the media tilted for every (angle, wavelength) (evaluated once per run), the target
+//! samples grouped by (angle, wavelength), and the merit, residuals and derivatives of a layer
+//! list — four groups per pass in SIMD lanes.
+
+use std::cell::RefCell;
 
 use nalgebra::DMatrix;
 use num_complex::Complex64;
@@ -8,7 +11,7 @@ use num_complex::Complex64;
 use crate::design::{Design, Pol, Quantity, TargetKind};
 use crate::material::{Catalog, Material};
 use crate::optics::{
-    Gradient, GradientScratch, Response, Scratch4, Side, StackAt, solve_gradient, solve4,
+    Gradient, GradientScratch4, Media4, Response, Side, StackAt, solve_gradient4, solve4_with,
 };
 
 use super::OptimizeError;
@@ -81,6 +84,22 @@ pub struct Evaluator {
     back_layers: Vec<(usize, f64)>,
     /// Per target: its points, in wavelength order.
     pub(crate) target_points: Vec<Vec<usize>>,
+    /// The media of groups 4q..4q+3 tilted for their angles (the last quad repeats its last
+    /// group): what every solve of those groups starts from, whatever the layers.
+    media: Vec<Media4>,
+}
+
+/// Reusable buffers for the derivative passes ([`Evaluator::jacobian`]).
+#[derive(Debug, Default)]
+pub(crate) struct GradientWork {
+    scratch: GradientScratch4,
+    grads: [Gradient; 4],
+}
+
+thread_local! {
+    /// Buffers for [`Evaluator::merit_gradient`] and [`Evaluator::merit`], so the optimiser's
+    /// inner loop does not allocate.
+    static WORK: RefCell<(GradientWork, Vec<Response>, Vec<f64>)> = RefCell::default();
 }
 
 impl Evaluator {
@@ -190,7 +209,7 @@ impl Evaluator {
                 table.push(m.index_at(w)?);
             }
         }
-        Ok(Self {
+        let mut ev = Self {
             palette,
             width,
             table,
@@ -200,7 +219,27 @@ impl Evaluator {
             substrate_mm: resolved.substrate_mm,
             back_layers: resolved.back_layers.clone(),
             target_points,
-        })
+            media: Vec::new(),
+        };
+        ev.media = (0..ev.groups.len())
+            .step_by(4)
+            .map(|first| {
+                let lanes = ev.quad(first);
+                let stacks = lanes.map(|g| ev.stack(g, &[]));
+                Media4::new(
+                    stacks.each_ref(),
+                    lanes.map(|g| ev.groups[g].aoi_rad),
+                    Side::Front,
+                )
+            })
+            .collect();
+        Ok(ev)
+    }
+
+    /// The four groups of the quad starting at `first` (past the end: the last group again).
+    fn quad(&self, first: usize) -> [usize; 4] {
+        let last = self.groups.len() - 1;
+        std::array::from_fn(|k| (first + k).min(last))
     }
 
     /// A copy whose first `scales.len()` palette materials (the design's layer materials, in
@@ -280,16 +319,13 @@ impl Evaluator {
         let count = self.groups.len();
         out.clear();
         out.resize(count, Response::default());
-        let mut scratch = Scratch4::default();
-        for first in (0..count).step_by(4) {
-            let lanes: [usize; 4] = std::array::from_fn(|k| (first + k).min(count - 1));
+        for (media, first) in self.media.iter().zip((0..count).step_by(4)) {
+            let lanes = self.quad(first);
             let stacks = lanes.map(|g| self.stack(g, layers));
-            let four = solve4(
+            let four = solve4_with(
+                media,
                 stacks.each_ref(),
                 lanes.map(|g| self.groups[g].wavelength_nm),
-                lanes.map(|g| self.groups[g].aoi_rad),
-                Side::Front,
-                &mut scratch,
             );
             for (k, &g) in lanes.iter().enumerate() {
                 out[g] = four[k];
@@ -317,9 +353,44 @@ impl Evaluator {
     /// The merit of a layer list.
     #[must_use]
     pub fn merit(&self, layers: &[(usize, f64)]) -> f64 {
-        let mut buf = Vec::new();
-        let mut r = vec![0.0; self.points.len()];
-        self.residuals(layers, &mut buf, &mut r)
+        WORK.with_borrow_mut(|(_, buf, r)| {
+            r.clear();
+            r.resize(self.points.len(), 0.0);
+            self.residuals(layers, buf, r)
+        })
+    }
+
+    /// Runs the derivative passes four groups at a time and calls `visit(group, gradient)`
+    /// for every group that some target samples.
+    fn gradients(
+        &self,
+        layers: &[(usize, f64)],
+        work: &mut GradientWork,
+        mut visit: impl FnMut(usize, &Gradient),
+    ) {
+        let count = self.groups.len();
+        for (media, first) in self.media.iter().zip((0..count).step_by(4)) {
+            let lanes = self.quad(first);
+            if lanes.iter().all(|&g| {
+                let (a, b) = self.group_points[g];
+                a == b
+            }) {
+                continue;
+            }
+            let stacks = lanes.map(|g| self.stack(g, layers));
+            solve_gradient4(
+                media,
+                stacks.each_ref(),
+                lanes.map(|g| self.groups[g].wavelength_nm),
+                &mut work.scratch,
+                &mut work.grads,
+            );
+            for (k, &g) in lanes.iter().enumerate() {
+                if first + k < count {
+                    visit(g, &work.grads[k]);
+                }
+            }
+        }
     }
 
     /// Residuals and their Jacobian with respect to the thicknesses of layers `free` (column
@@ -330,22 +401,11 @@ impl Evaluator {
         free: &[usize],
         residuals: &mut [f64],
         jac: &mut DMatrix<f64>,
-        work: &mut (GradientScratch, Gradient),
+        work: &mut GradientWork,
     ) -> f64 {
         let mut sum = 0.0;
-        let (scratch, g) = work;
-        for (gi, group) in self.groups.iter().enumerate() {
+        self.gradients(layers, work, |gi, g| {
             let (a, b) = self.group_points[gi];
-            if a == b {
-                continue;
-            }
-            solve_gradient(
-                &self.stack(gi, layers),
-                group.wavelength_nm,
-                group.aoi_rad,
-                scratch,
-                g,
-            );
             for i in a..b {
                 let p = &self.points[i];
                 let e = deviation(p, value(&g.response, p.quantity, p.pol));
@@ -356,39 +416,33 @@ impl Evaluator {
                     jac[(i, c)] = active * d_value(g, k, p.quantity, p.pol);
                 }
             }
-        }
+        });
         sum.sqrt()
     }
 
     /// The merit and its gradient ∂MF²/∂d (per nm) for every layer of `layers` (into
     /// `grad`), by the analytic derivatives of [`crate::optics::solve_gradient`]: one pass per
-    /// (angle, wavelength) sample.
+    /// (angle, wavelength) sample, four samples per pass.
     pub fn merit_gradient(&self, layers: &[(usize, f64)], grad: &mut Vec<f64>) -> f64 {
         grad.clear();
         grad.resize(layers.len(), 0.0);
-        let (mut scratch, mut g) = (GradientScratch::default(), Gradient::default());
         let mut sum = 0.0;
-        for (gi, group) in self.groups.iter().enumerate() {
-            let (a, b) = self.group_points[gi];
-            solve_gradient(
-                &self.stack(gi, layers),
-                group.wavelength_nm,
-                group.aoi_rad,
-                &mut scratch,
-                &mut g,
-            );
-            for p in &self.points[a..b] {
-                let e = deviation(p, value(&g.response, p.quantity, p.pol));
-                if e == 0.0 {
-                    continue;
+        WORK.with_borrow_mut(|(work, _, _)| {
+            self.gradients(layers, work, |gi, g| {
+                let (a, b) = self.group_points[gi];
+                for p in &self.points[a..b] {
+                    let e = deviation(p, value(&g.response, p.quantity, p.pol));
+                    if e == 0.0 {
+                        continue;
+                    }
+                    let r = p.scale * e;
+                    sum += r * r;
+                    for (k, gk) in grad.iter_mut().enumerate() {
+                        *gk += 2.0 * r * p.scale * d_value(g, k, p.quantity, p.pol);
+                    }
                 }
-                let r = p.scale * e;
-                sum += r * r;
-                for (k, gk) in grad.iter_mut().enumerate() {
-                    *gk += 2.0 * r * p.scale * d_value(&g, k, p.quantity, p.pol);
-                }
-            }
-        }
+            });
+        });
         sum.sqrt()
     }
 }

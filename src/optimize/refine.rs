@@ -5,9 +5,10 @@ use std::ops::ControlFlow;
 use nalgebra::DMatrix;
 
 use crate::design::{Design, Layer, Nm};
-use crate::optics::{Gradient, GradientScratch, Response};
+use crate::optics::Response;
 
 use super::lsq::{self, End, Residuals};
+use super::problem::GradientWork;
 use super::{Evaluator, OptimizeError, Options, Outcome, Progress, Stage, StopReason};
 
 /// A layer of the working design: palette material, thickness, lock.
@@ -24,7 +25,7 @@ struct Thicknesses<'a> {
     layers: Vec<(usize, f64)>,
     free: Vec<usize>,
     buf: Vec<Response>,
-    work: (GradientScratch, Gradient),
+    work: GradientWork,
 }
 
 impl Thicknesses<'_> {
@@ -129,7 +130,7 @@ pub(crate) fn refine_layers(
         layers: layers.iter().map(|w| (w.mat, w.nm)).collect(),
         free: free.clone(),
         buf: Vec::new(),
-        work: (GradientScratch::default(), Gradient::default()),
+        work: GradientWork::default(),
     };
     let mut best = layers.to_vec();
     let with = |best: &mut Vec<Work>, x: &[f64]| {

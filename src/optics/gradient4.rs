@@ -1,0 +1,668 @@
+//! [`super::solve_gradient`] for four points at once (four wavelengths of the optimiser's
+//! targets), in SIMD lanes: the same forward and backward passes (method in
+//! [`super::gradient`]), with the layer loop of [`super::lanes`] — each absorbing layer's
+//! matrix scaled by e^(−Im δ), the running [B; C] and the adjoint rows brought back near 1 by
+//! powers of two every few layers, the scales carried as logarithms and applied where a
+//! derivative is formed — so stacks of thousands of layers stay finite. Compiled once per
+//! instruction set, the best one chosen at run time ([`super::simd`]).
+
+#![allow(
+    clippy::inline_always,
+    reason = "the lane code must be inlined into each instruction set's version to use it"
+)]
+
+use num_complex::Complex64;
+
+use super::gradient::{Gradient, Pass, finish_gradient};
+use super::lanes::{Cx4, Tilted4, coherent4, inv};
+use super::simd::{self, F4, Level};
+use super::tmm::{BIG, Coherent, RENORM_EVERY, SMALL, Tilted, finish};
+use super::{Media4, StackAt};
+
+/// Reusable buffers for [`solve_gradient4`].
+#[derive(Clone, Debug, Default)]
+pub struct GradientScratch4 {
+    /// Per layer in pass order: cos δ, i sin δ (scaled) and k₀ q.
+    trig: Vec<[Cx4; 3]>,
+    /// Per layer in pass order: [B; C] below the layer (s, p) and the natural logarithm of
+    /// the scale taken out of each.
+    below: Vec<([[Cx4; 2]; 2], [F4; 2])>,
+    front: [Pass; 4],
+    inside: [Pass; 4],
+}
+
+/// i·z.
+#[inline(always)]
+fn times_i(z: Cx4) -> Cx4 {
+    Cx4 {
+        re: -z.im,
+        im: z.re,
+    }
+}
+
+#[inline(always)]
+fn add(a: Cx4, b: Cx4) -> Cx4 {
+    Cx4 {
+        re: a.re + b.re,
+        im: a.im + b.im,
+    }
+}
+
+#[inline(always)]
+fn scale(z: Cx4, f: F4) -> Cx4 {
+    Cx4 {
+        re: z.re * f,
+        im: z.im * f,
+    }
+}
+
+/// Brings the row or column vector `v` back near 1 by a power of two per lane when any lane
+/// has left [`SMALL`, `BIG`]; the natural logarithm taken out goes into `log`. Returns whether
+/// anything was rescaled.
+#[inline(always)]
+fn renorm2(v: &mut [Cx4; 2], log: &mut F4) -> bool {
+    let m = v[0]
+        .re
+        .abs()
+        .max(v[0].im.abs())
+        .max(v[1].re.abs().max(v[1].im.abs()));
+    if !m.any_outside(SMALL, BIG) {
+        return false;
+    }
+    rescale2(v, log, m);
+    true
+}
+
+#[cold]
+#[inline(never)]
+fn rescale2(v: &mut [Cx4; 2], log: &mut F4, m: F4) {
+    let f = F4(m.0.map(|m| super::tmm::renorm_factor(m).unwrap_or(1.0)));
+    for z in v.iter_mut() {
+        *z = scale(*z, f);
+    }
+    *log -= f.map(f64::ln);
+}
+
+/// The media of one coherent problem in four lanes: (incident, exit) per lane.
+type Ends<'a> = ([&'a Tilted; 4], [&'a Tilted; 4]);
+
+/// One coherent problem forward and backward, four points at once. `reversed` walks the
+/// layers from the last (the coating seen from inside the substrate); derivatives land at
+/// deposition indices in each lane's [`Pass`].
+#[allow(clippy::too_many_arguments)]
+fn pass4(
+    level: Level,
+    (incident, substrate): Ends<'_>,
+    mats: &[Tilted4],
+    layers: &[(usize, f64)],
+    reversed: bool,
+    k0: F4,
+    trig: &mut Vec<[Cx4; 3]>,
+    below: &mut Vec<([[Cx4; 2]; 2], [F4; 2])>,
+    out: &mut [Pass; 4],
+) {
+    let n = layers.len();
+    for lane in out.iter_mut() {
+        for v in lane.dr.iter_mut().chain(lane.dd_rel.iter_mut()) {
+            v.clear();
+            v.resize(n, Complex64::default());
+        }
+    }
+    let eta_sub = [
+        Cx4::gather(substrate.map(|t| t.eta_s)),
+        Cx4::gather(substrate.map(|t| t.eta_p)),
+    ];
+    let eta0 = [
+        Cx4::gather(incident.map(|t| t.eta_s)),
+        Cx4::gather(incident.map(|t| t.eta_p)),
+    ];
+    let (v, log_scale, norm) = simd::run_at(
+        level,
+        Forward {
+            mats,
+            layers,
+            reversed,
+            k0,
+            eta_sub,
+            trig,
+            below,
+        },
+    );
+    for (i, lane) in out.iter_mut().enumerate() {
+        let (inc, sub) = (incident[i], substrate[i]);
+        let cos_ratio = (inc.q / inc.n) / (sub.q / sub.n);
+        lane.result = Coherent {
+            s: finish(
+                inc.eta_s,
+                v[0][0].lane(i),
+                v[0][1].lane(i),
+                sub.eta_s,
+                Complex64::ONE,
+                log_scale.0[i] + norm[0].0[i],
+            ),
+            p: finish(
+                inc.eta_p,
+                v[1][0].lane(i),
+                v[1][1].lane(i),
+                sub.eta_p,
+                cos_ratio,
+                log_scale.0[i] + norm[1].0[i],
+            ),
+        };
+    }
+    simd::run_at(
+        level,
+        Backward {
+            mats,
+            layers,
+            reversed,
+            trig,
+            below,
+            eta0,
+            v,
+            norm,
+            out,
+        },
+    );
+}
+
+/// [`forward`] as an operation for [`simd::run_at`].
+struct Forward<'a> {
+    mats: &'a [Tilted4],
+    layers: &'a [(usize, f64)],
+    reversed: bool,
+    k0: F4,
+    eta_sub: [Cx4; 2],
+    trig: &'a mut Vec<[Cx4; 3]>,
+    below: &'a mut Vec<([[Cx4; 2]; 2], [F4; 2])>,
+}
+
+impl pulp::WithSimd for Forward<'_> {
+    type Output = ([[Cx4; 2]; 2], F4, [F4; 2]);
+
+    #[inline(always)]
+    fn with_simd<S: pulp::Simd>(self, _simd: S) -> Self::Output {
+        forward(
+            self.mats,
+            self.layers,
+            self.reversed,
+            self.k0,
+            self.eta_sub,
+            self.trig,
+            self.below,
+        )
+    }
+}
+
+/// [`backward`] as an operation for [`simd::run_at`].
+struct Backward<'a> {
+    mats: &'a [Tilted4],
+    layers: &'a [(usize, f64)],
+    reversed: bool,
+    trig: &'a [[Cx4; 3]],
+    below: &'a [([[Cx4; 2]; 2], [F4; 2])],
+    eta0: [Cx4; 2],
+    v: [[Cx4; 2]; 2],
+    norm: [F4; 2],
+    out: &'a mut [Pass; 4],
+}
+
+impl pulp::WithSimd for Backward<'_> {
+    type Output = ();
+
+    #[inline(always)]
+    fn with_simd<S: pulp::Simd>(self, _simd: S) {
+        backward(
+            self.mats,
+            self.layers,
+            self.reversed,
+            self.trig,
+            self.below,
+            self.eta0,
+            self.v,
+            self.norm,
+            self.out,
+        );
+    }
+}
+
+/// The forward pass: keeps [B; C] below each layer in `below` and the layer's trigonometry in
+/// `trig`; returns the final [B; C] (s, p), the log of the absorbing layers' scale and the
+/// log of the renormalisation of each polarisation.
+#[inline(always)]
+#[allow(clippy::type_complexity, reason = "unpacked by the one caller")]
+fn forward(
+    mats: &[Tilted4],
+    layers: &[(usize, f64)],
+    reversed: bool,
+    k0: F4,
+    eta_sub: [Cx4; 2],
+    trig: &mut Vec<[Cx4; 3]>,
+    below: &mut Vec<([[Cx4; 2]; 2], [F4; 2])>,
+) -> ([[Cx4; 2]; 2], F4, [F4; 2]) {
+    let n = layers.len();
+    trig.clear();
+    below.clear();
+    let one = Cx4 {
+        re: F4::ONE,
+        im: F4::ZERO,
+    };
+    let half = F4::splat(0.5);
+    let mut v = [[one, eta_sub[0]], [one, eta_sub[1]]];
+    let mut norm = [F4::ZERO; 2];
+    let mut log_scale = F4::ZERO;
+    for p in 0..n {
+        if p % RENORM_EVERY == 0 && p > 0 {
+            renorm2(&mut v[0], &mut norm[0]);
+            renorm2(&mut v[1], &mut norm[1]);
+        }
+        let (mi, d_nm) = layers[if reversed { n - 1 - p } else { p }];
+        let m = &mats[mi];
+        let kd = k0 * F4::splat(d_nm);
+        let (sin_a, cos_a) = (m.q.re * kd).sin_cos();
+        let (cd, is) = if m.real {
+            (
+                Cx4 {
+                    re: cos_a,
+                    im: F4::ZERO,
+                },
+                Cx4 {
+                    re: F4::ZERO,
+                    im: sin_a,
+                },
+            )
+        } else {
+            let b = m.q.im * kd;
+            let em = (-b).exp();
+            let em2 = em * em;
+            log_scale += b;
+            let (ch, sh) = ((F4::ONE + em2) * half, (F4::ONE - em2) * half);
+            (
+                Cx4 {
+                    re: cos_a * ch,
+                    im: -(sin_a * sh),
+                },
+                Cx4 {
+                    re: -(cos_a * sh),
+                    im: sin_a * ch,
+                },
+            )
+        };
+        below.push((v, norm));
+        trig.push([cd, is, scale(m.q, k0)]);
+        for (pol, (eta, inv_eta)) in [(m.eta_s, m.inv_eta_s), (m.eta_p, m.inv_eta_p)]
+            .into_iter()
+            .enumerate()
+        {
+            let [b, c] = v[pol];
+            v[pol] = [
+                cd.mul(b).sub(is.mul(inv_eta.mul(c))),
+                cd.mul(c).sub(is.mul(eta.mul(b))),
+            ];
+        }
+    }
+    renorm2(&mut v[0], &mut norm[0]);
+    renorm2(&mut v[1], &mut norm[1]);
+    (v, log_scale, norm)
+}
+
+/// The backward pass: the adjoint rows [C, −B] (for dr) and [η₀, 1] (for dD) carried down,
+/// contracted with ∂M/∂d · v below each layer.
+#[inline(always)]
+#[allow(clippy::too_many_arguments)]
+fn backward(
+    mats: &[Tilted4],
+    layers: &[(usize, f64)],
+    reversed: bool,
+    trig: &[[Cx4; 3]],
+    below: &[([[Cx4; 2]; 2], [F4; 2])],
+    eta0: [Cx4; 2],
+    v: [[Cx4; 2]; 2],
+    norm: [F4; 2],
+    out: &mut [Pass; 4],
+) {
+    let n = layers.len();
+    let one = Cx4 {
+        re: F4::ONE,
+        im: F4::ZERO,
+    };
+    for pol in 0..2 {
+        let [b, c] = v[pol];
+        let den = eta0[pol].mul(b);
+        let den = add(den, c);
+        let inv_den = inv(den);
+        let dr_factor = scale(eta0[pol].mul(inv_den.mul(inv_den)), F4::splat(2.0));
+        // Row vectors and the logs of their scales: the true rows are w·e^f.
+        let mut w1 = [
+            c,
+            Cx4 {
+                re: -b.re,
+                im: -b.im,
+            },
+        ];
+        let mut f1 = norm[pol];
+        let mut w2 = [eta0[pol], one];
+        let mut f2 = F4::ZERO;
+        // Whether any scale is in play (the forward pass or the rows were rescaled).
+        let mut scaled = norm[pol].0.iter().any(|&x| x != 0.0);
+        for (count, p) in (0..n).rev().enumerate() {
+            if count % RENORM_EVERY == 0 && count > 0 {
+                scaled |= renorm2(&mut w1, &mut f1);
+                scaled |= renorm2(&mut w2, &mut f2);
+            }
+            let [cd, is, kq] = trig[p];
+            let k = if reversed { n - 1 - p } else { p };
+            let m = &mats[layers[k].0];
+            let (eta, inv_eta) = if pol == 0 {
+                (m.eta_s, m.inv_eta_s)
+            } else {
+                (m.eta_p, m.inv_eta_p)
+            };
+            let ([bb, cb], below_norm) = (below[p].0[pol], below[p].1[pol]);
+            // (∂M/∂d)·v = k₀q · i·[i sin δ · B − cos δ · C/η; i sin δ · C − η cos δ · B]
+            let x0 = kq.mul(times_i(is.mul(bb).sub(cd.mul(inv_eta.mul(cb)))));
+            let x1 = kq.mul(times_i(is.mul(cb).sub(eta.mul(cd.mul(bb)))));
+            let mut dr = dr_factor.mul(add(w1[0].mul(x0), w1[1].mul(x1)));
+            let mut dd = add(w2[0].mul(x0), w2[1].mul(x1)).mul(inv_den);
+            if scaled || below_norm.0.iter().any(|&x| x != 0.0) {
+                dr = scale(dr, (f1 + below_norm - norm[pol] - norm[pol]).exp());
+                dd = scale(dd, (f2 + below_norm - norm[pol]).exp());
+            }
+            for (i, lane) in out.iter_mut().enumerate() {
+                lane.dr[pol][k] = dr.lane(i);
+                lane.dd_rel[pol][k] = dd.lane(i);
+            }
+            // w ← w·M
+            let step = |w: [Cx4; 2]| {
+                [
+                    w[0].mul(cd).sub(w[1].mul(eta.mul(is))),
+                    w[1].mul(cd).sub(w[0].mul(is.mul(inv_eta))),
+                ]
+            };
+            w1 = step(w1);
+            w2 = step(w2);
+        }
+    }
+}
+
+/// [`super::solve_gradient`] for four points (light from the front): `media` from
+/// [`Media4::new`] with these stacks' indices, the angles and [`super::Side::Front`]; the
+/// stacks share their layers. Writes each point's response and derivatives into `out`.
+/// Agrees with [`super::solve_gradient`] to rounding; nothing is allocated once the buffers
+/// have grown to the layer count.
+pub fn solve_gradient4(
+    media: &Media4,
+    stacks: [&StackAt<'_>; 4],
+    wavelength_nm: [f64; 4],
+    scratch: &mut GradientScratch4,
+    out: &mut [Gradient; 4],
+) {
+    solve_gradient4_at(Level::best(), media, stacks, wavelength_nm, scratch, out);
+}
+
+/// [`solve_gradient4`] in a chosen instruction set (tests compare them).
+pub(crate) fn solve_gradient4_at(
+    level: Level,
+    media: &Media4,
+    stacks: [&StackAt<'_>; 4],
+    wavelength_nm: [f64; 4],
+    scratch: &mut GradientScratch4,
+    out: &mut [Gradient; 4],
+) {
+    let k0 = F4(wavelength_nm.map(|w| std::f64::consts::TAU / w));
+    let setups = &media.setups;
+    let mats = &media.packed;
+    let layers = stacks[0].layers;
+    let ends = |pick: fn(&super::Setup) -> &(Tilted, Tilted)| -> Ends<'_> {
+        (
+            std::array::from_fn(|i| &pick(&setups[i]).0),
+            std::array::from_fn(|i| &pick(&setups[i]).1),
+        )
+    };
+    let GradientScratch4 {
+        trig,
+        below,
+        front,
+        inside,
+    } = scratch;
+    pass4(
+        level,
+        ends(|s| &s.front_out),
+        mats,
+        layers,
+        false,
+        k0,
+        trig,
+        below,
+        front,
+    );
+    if stacks[0].substrate_mm.is_none() {
+        for i in 0..4 {
+            finish_gradient(
+                stacks[i],
+                &setups[i],
+                wavelength_nm[i],
+                &front[i],
+                None,
+                &mut out[i],
+            );
+        }
+        return;
+    }
+    pass4(
+        level,
+        ends(|s| &s.front_in),
+        mats,
+        layers,
+        true,
+        k0,
+        trig,
+        below,
+        inside,
+    );
+    // The back face (its coating or the bare surface) seen from inside the substrate.
+    let (ci, cs) = ends(|s| &s.back_in);
+    let back = stacks[0].back_layers;
+    let back_in = coherent4(
+        ci,
+        back.iter().rev().map(|&(m, d)| (&mats[m], d)),
+        cs,
+        wavelength_nm,
+    );
+    for i in 0..4 {
+        finish_gradient(
+            stacks[i],
+            &setups[i],
+            wavelength_nm[i],
+            &front[i],
+            Some((&inside[i], back_in[i])),
+            &mut out[i],
+        );
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::optics::{GradientScratch, Side, solve_gradient};
+
+    /// A small xorshift generator: reproducible random stacks without a dependency.
+    struct Rng(u64);
+
+    impl Rng {
+        fn next(&mut self) -> f64 {
+            self.0 ^= self.0 << 13;
+            self.0 ^= self.0 >> 7;
+            self.0 ^= self.0 << 17;
+            (self.0 >> 11) as f64 / (1u64 << 53) as f64
+        }
+
+        fn range(&mut self, lo: f64, hi: f64) -> f64 {
+            lo + (hi - lo) * self.next()
+        }
+    }
+
+    /// Every value and derivative of a gradient, for comparisons.
+    fn numbers(g: &Gradient) -> Vec<f64> {
+        let r = &g.response;
+        let mut v = vec![r.r_s, r.r_p, r.t_s, r.t_p, r.a_s, r.a_p];
+        for d in [&g.d_r_s, &g.d_r_p, &g.d_t_s, &g.d_t_p] {
+            v.extend(d.iter().copied());
+        }
+        for d in [&g.d_amp_r_s, &g.d_amp_r_p, &g.d_amp_t_s, &g.d_amp_t_p] {
+            v.extend(d.iter().flat_map(|z| [z.re, z.im]));
+        }
+        v
+    }
+
+    /// Four lanes against the one-point derivatives ([`solve_gradient`], itself checked
+    /// against central differences) on random absorbing stacks at oblique incidence, with and
+    /// without a thick absorbing substrate and a coated back face; and the widest instruction
+    /// set this processor has against the portable one (it must be the chosen one where the
+    /// processor has AVX2 and FMA, so the comparison is not of one version with itself).
+    #[test]
+    fn four_lanes_agree_with_one_point_and_across_instruction_sets() {
+        #[cfg(any(target_arch = "x86", target_arch = "x86_64"))]
+        if std::arch::is_x86_feature_detected!("avx2") && std::arch::is_x86_feature_detected!("fma")
+        {
+            assert_eq!(Level::best(), Level::Avx2, "the AVX2 loop is chosen");
+        }
+        let best = Level::best();
+        let mut rng = Rng(0x2545_f491_4f6c_dd1d);
+        let (mut scratch4, mut one) = (GradientScratch4::default(), GradientScratch::default());
+        let mut compared = 0;
+        for case in 0..16 {
+            let n = 1 + (rng.next() * 40.0) as usize;
+            let layers: Vec<(usize, f64)> = (0..n)
+                .map(|_| ((rng.next() * 3.0) as usize % 3, rng.range(5.0, 250.0)))
+                .collect();
+            let back = [(0, rng.range(20.0, 120.0)), (1, rng.range(20.0, 120.0))];
+            let substrate_mm = (case % 2 == 1).then(|| rng.range(0.5, 3.0));
+            let rows: Vec<[Complex64; 3]> = (0..4)
+                .map(|_| {
+                    std::array::from_fn(|_| {
+                        Complex64::new(rng.range(1.3, 2.6), rng.range(0.0, 0.3))
+                    })
+                })
+                .collect();
+            let sub_k = if case % 3 == 0 { 0.0 } else { 1e-6 };
+            let stacks: Vec<StackAt<'_>> = rows
+                .iter()
+                .map(|row| StackAt {
+                    incident: Complex64::new(1.0, 0.0),
+                    substrate: Complex64::new(1.6, sub_k),
+                    exit: Complex64::new(1.0, 0.0),
+                    materials: row,
+                    layers: &layers,
+                    back_layers: if case % 4 == 1 { &back } else { &[] },
+                    substrate_mm,
+                })
+                .collect();
+            let stacks: [&StackAt<'_>; 4] = std::array::from_fn(|i| &stacks[i]);
+            let wl: [f64; 4] = std::array::from_fn(|_| rng.range(400.0, 900.0));
+            let aoi: [f64; 4] = std::array::from_fn(|_| rng.range(0.0, 70.0).to_radians());
+            let media = Media4::new(stacks, aoi, Side::Front);
+            let mut portable: [Gradient; 4] = Default::default();
+            let mut wide: [Gradient; 4] = Default::default();
+            solve_gradient4_at(
+                Level::Portable,
+                &media,
+                stacks,
+                wl,
+                &mut scratch4,
+                &mut portable,
+            );
+            solve_gradient4_at(best, &media, stacks, wl, &mut scratch4, &mut wide);
+            for i in 0..4 {
+                let mut g = Gradient::default();
+                solve_gradient(stacks[i], wl[i], aoi[i], &mut one, &mut g);
+                let (a, b, c) = (numbers(&portable[i]), numbers(&wide[i]), numbers(&g));
+                assert_eq!(a.len(), c.len(), "case {case}: sizes");
+                for q in 0..a.len() {
+                    assert!(
+                        (a[q] - b[q]).abs() < 1e-13,
+                        "case {case} lane {i} number {q}: portable {} vs {best:?} {}",
+                        a[q],
+                        b[q]
+                    );
+                    assert!(
+                        (a[q] - c[q]).abs() < 1e-10 * (1.0 + c[q].abs()),
+                        "case {case} lane {i} number {q}: four lanes {} vs one point {}",
+                        a[q],
+                        c[q]
+                    );
+                    compared += 1;
+                }
+            }
+        }
+        assert!(compared > 3000, "compared {compared} numbers");
+    }
+
+    /// 4000 quarter-wave layers in their stop band under absorbing layers (see the one-point
+    /// test in `gradient`): the lanes stay finite and agree with the one-point derivatives,
+    /// which are checked against central differences there.
+    #[test]
+    fn thousands_of_layers_stay_finite_in_lanes() {
+        let materials = [
+            Complex64::new(2.35, 0.0),
+            Complex64::new(1.38, 0.0),
+            Complex64::new(2.0, 0.3),
+        ];
+        let mut layers: Vec<(usize, f64)> = (0..4000)
+            .map(|i| {
+                let m = i % 2;
+                (
+                    m,
+                    550.0 / (4.0 * materials[m].re) * (1.0 + 0.01 * (i % 7) as f64),
+                )
+            })
+            .collect();
+        layers.extend([(2, 12.0), (1, 80.0), (2, 7.0), (0, 40.0)]);
+        for substrate_mm in [None, Some(1.0)] {
+            let stack = StackAt {
+                incident: Complex64::new(1.0, 0.0),
+                substrate: Complex64::new(1.52, 0.0),
+                exit: Complex64::new(1.0, 0.0),
+                materials: &materials,
+                layers: &layers,
+                back_layers: &[],
+                substrate_mm,
+            };
+            let wl = [550.0, 545.0, 560.0, 530.0];
+            let aoi = [30f64.to_radians(); 4];
+            let media = Media4::new([&stack; 4], aoi, Side::Front);
+            let mut four: [Gradient; 4] = Default::default();
+            let mut scratch = GradientScratch4::default();
+            solve_gradient4(&media, [&stack; 4], wl, &mut scratch, &mut four);
+            let mut largest = 0.0_f64;
+            for i in 0..4 {
+                let mut g = Gradient::default();
+                solve_gradient(
+                    &stack,
+                    wl[i],
+                    aoi[i],
+                    &mut GradientScratch::default(),
+                    &mut g,
+                );
+                let (a, c) = (numbers(&four[i]), numbers(&g));
+                for q in 0..a.len() {
+                    assert!(
+                        a[q].is_finite(),
+                        "{substrate_mm:?} lane {i} number {q}: finite"
+                    );
+                    assert!(
+                        (a[q] - c[q]).abs() < 1e-9 * (1.0 + c[q].abs()),
+                        "{substrate_mm:?} lane {i} number {q}: lanes {} vs one point {}",
+                        a[q],
+                        c[q]
+                    );
+                    largest = largest.max(a[q].abs());
+                }
+            }
+            assert!(
+                largest > 1e-4,
+                "{substrate_mm:?}: real derivatives were compared"
+            );
+        }
+    }
+}
