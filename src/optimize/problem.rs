@@ -221,19 +221,24 @@ impl Evaluator {
             target_points,
             media: Vec::new(),
         };
-        ev.media = (0..ev.groups.len())
+        ev.media = ev.tilted_media();
+        Ok(ev)
+    }
+
+    /// The media of every quad of groups, tilted for their angles from the current table.
+    fn tilted_media(&self) -> Vec<Media4> {
+        (0..self.groups.len())
             .step_by(4)
             .map(|first| {
-                let lanes = ev.quad(first);
-                let stacks = lanes.map(|g| ev.stack(g, &[]));
+                let lanes = self.quad(first);
+                let stacks = lanes.map(|g| self.stack(g, &[]));
                 Media4::new(
                     stacks.each_ref(),
-                    lanes.map(|g| ev.groups[g].aoi_rad),
+                    lanes.map(|g| self.groups[g].aoi_rad),
                     Side::Front,
                 )
             })
-            .collect();
-        Ok(ev)
+            .collect()
     }
 
     /// The four groups of the quad starting at `first` (past the end: the last group again).
@@ -254,6 +259,8 @@ impl Evaluator {
                 n.re *= scale;
             }
         }
+        // The tilted media were made from the unscaled table.
+        e.media = e.tilted_media();
         e
     }
 
