@@ -42,6 +42,7 @@ fn problem(layers: usize, aoi_deg: f64) -> (Evaluator, Vec<(usize, f64)>) {
         goal: 0.0,
         tolerance: 0.0,
         weight: 1.0,
+        measure: stackwise::design::Measure::Spectral,
     }];
     let ev = Evaluator::new(&d, &[]).expect("valid bench design");
     let layers = ev.layers_of(&d);

@@ -23,6 +23,7 @@ pub fn new_target(from_nm: f64, to_nm: f64) -> Target {
         goal: 0.005,
         tolerance: 0.0,
         weight: 1.0,
+        measure: crate::design::Measure::Spectral,
     }
 }
 
