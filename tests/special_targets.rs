@@ -1,6 +1,8 @@
 //! GDD and colour targets: values equal the analysis views', derivatives, refinement toward
 //! the goal, old files, bad input.
 
+mod common;
+
 use std::ops::ControlFlow;
 
 use stackwise::analysis::color::{Illuminant, Observer, design_colour};
@@ -295,4 +297,43 @@ fn bad_gdd_and_colour_targets_are_refused_by_name() {
         }) => assert!(target == 1 && material == "Narrow"),
         other => panic!("{other:?}"),
     }
+}
+
+#[test]
+fn the_command_line_optimises_and_lists_gdd_and_colour_targets() {
+    let dir = tempfile::tempdir().expect("valid test input");
+    let mut d = base(&[("H", 13.0), ("L", 33.0), ("H", 114.0), ("L", 94.0)]);
+    d.targets = vec![
+        colour(ColourCoordinate::A, 0.0, 2.0),
+        colour(ColourCoordinate::B, -5.0, 2.0),
+        Target {
+            from_nm: 540.0,
+            to_nm: 560.0,
+            ..target(Measure::Gdd, TargetKind::AtMost, 50.0, 0.0)
+        },
+    ];
+    let input = dir.path().join("start.ron");
+    file::save(&input, &d).expect("valid test input");
+    let (info, _) = common::ok(&["info", input.to_str().expect("utf-8")]);
+    assert!(
+        info.contains("1. reflected a* (mean) = 0 ± 2 (D65, 2°) at 0°, 360–780 nm (weight 1)")
+            && info.contains("3. GDD of R (mean) ≤ 50 fs² at 0°, 540–560 nm"),
+        "{info}"
+    );
+    let out_path = dir.path().join("new.ron");
+    let (stdout, _) = common::ok(&[
+        "optimize",
+        input.to_str().expect("utf-8"),
+        "--out",
+        out_path.to_str().expect("utf-8"),
+    ]);
+    let new = file::load(&out_path).expect("written");
+    let e = evaluate_targets(&new).expect("valid");
+    assert!(e.targets[0].pass && e.targets[1].pass, "{:?}", e.targets);
+    assert!(
+        stdout.contains("target 2: reflected b* (mean) = -5 ± 2 (D65, 2°) at 0°, 360–780 nm — met")
+            && stdout.contains("CIELAB units"),
+        "{stdout}"
+    );
+    assert_eq!(new.targets, d.targets, "targets kept as written");
 }

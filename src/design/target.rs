@@ -93,6 +93,17 @@ pub enum ColourLight {
     A,
 }
 
+impl ColourLight {
+    /// "D65" or "A".
+    #[must_use]
+    pub fn name(self) -> &'static str {
+        match self {
+            ColourLight::D65 => "D65",
+            ColourLight::A => "A",
+        }
+    }
+}
+
 /// A CIE standard observer for colour targets.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Default, Serialize, Deserialize)]
 pub enum ColourObserver {
@@ -101,6 +112,18 @@ pub enum ColourObserver {
     TwoDeg,
     /// CIE 1964 10°.
     TenDeg,
+}
+
+impl TargetKind {
+    /// The sign people write for the kind: "=", "≤" or "≥".
+    #[must_use]
+    pub fn sign(self) -> &'static str {
+        match self {
+            TargetKind::Equal => "=",
+            TargetKind::AtMost => "≤",
+            TargetKind::AtLeast => "≥",
+        }
+    }
 }
 
 /// One optimisation target over a wavelength range (a single wavelength when
@@ -146,6 +169,83 @@ pub struct Target {
 }
 
 impl Target {
+    /// The target in words, as the window and `stackwise info` show it:
+    ///
+    /// ```
+    /// use stackwise::design::{ColourCoordinate, ColourLight, ColourObserver, Measure, Pol,
+    ///     Quantity, Target, TargetKind};
+    /// let mut t = Target {
+    ///     quantity: Quantity::R, pol: Pol::Mean, aoi_deg: 0.0,
+    ///     from_nm: 420.0, to_nm: 680.0, step_nm: 5.0,
+    ///     kind: TargetKind::AtMost, goal: 0.005, tolerance: 0.0, weight: 1.0,
+    ///     measure: Measure::Spectral,
+    /// };
+    /// assert_eq!(t.describe(), "R (mean) ≤ 0.5 % at 0°, 420–680 nm");
+    /// (t.measure, t.kind, t.goal, t.tolerance) = (Measure::Gdd, TargetKind::Equal, -50.0, 20.0);
+    /// assert_eq!(t.describe(), "GDD of R (mean) = -50 ± 20 fs² at 0°, 420–680 nm");
+    /// t.measure = Measure::Colour {
+    ///     coordinate: ColourCoordinate::B,
+    ///     illuminant: ColourLight::D65,
+    ///     observer: ColourObserver::TenDeg,
+    /// };
+    /// (t.goal, t.tolerance) = (-5.0, 2.0);
+    /// assert_eq!(t.describe(), "reflected b* (mean) = -5 ± 2 (D65, 10°) at 0°, 360–780 nm");
+    /// ```
+    #[must_use]
+    pub fn describe(&self) -> String {
+        let pol = match self.pol {
+            Pol::S => "s",
+            Pol::P => "p",
+            Pol::Mean => "mean",
+        };
+        let span = if self.to_nm <= self.from_nm {
+            format!("{} nm", self.from_nm)
+        } else {
+            format!("{}–{} nm", self.from_nm, self.to_nm)
+        };
+        let tol = |unit: &str| {
+            if self.tolerance > 0.0 {
+                format!(" ± {}{unit}", round4(self.tolerance))
+            } else {
+                String::new()
+            }
+        };
+        let (sign, q, angle) = (self.kind.sign(), self.quantity.symbol(), self.aoi_deg);
+        match self.measure {
+            Measure::Spectral => format!(
+                "{q} ({pol}) {sign} {} %{} at {angle}°, {span}",
+                round4(self.goal * 100.0),
+                if self.tolerance > 0.0 {
+                    format!(" ± {} %", round4(self.tolerance * 100.0))
+                } else {
+                    String::new()
+                }
+            ),
+            Measure::Gdd => format!(
+                "GDD of {q} ({pol}) {sign} {}{} fs² at {angle}°, {span}",
+                round4(self.goal),
+                tol("")
+            ),
+            Measure::Colour {
+                coordinate,
+                illuminant,
+                observer,
+            } => format!(
+                "{} {} ({pol}) {sign} {}{} ({}, {}) at {angle}°, 360–780 nm",
+                if self.quantity == Quantity::T {
+                    "transmitted"
+                } else {
+                    "reflected"
+                },
+                coordinate.symbol(),
+                round4(self.goal),
+                tol(""),
+                illuminant.name(),
+                observer.name()
+            ),
+        }
+    }
+
     /// How many residuals the target adds to the merit: one per wavelength, one for colour.
     #[must_use]
     pub fn sample_count(&self) -> usize {
@@ -178,6 +278,21 @@ impl Target {
         }
         (0..=count as u32).map(|i| a + f64::from(i) * s).collect()
     }
+}
+
+impl ColourObserver {
+    /// "2°" or "10°".
+    #[must_use]
+    pub fn name(self) -> &'static str {
+        match self {
+            ColourObserver::TwoDeg => "2°",
+            ColourObserver::TenDeg => "10°",
+        }
+    }
+}
+
+fn round4(x: f64) -> f64 {
+    (x * 1e4).round() / 1e4
 }
 
 #[expect(
