@@ -624,6 +624,7 @@ fn gdd_and_colour_targets_show_their_values_in_the_panel_and_no_spectrum_mark() 
     h.get_by_label_contains("colour sums 360–780 nm");
     h.get_by_label("Target 3 colour coordinate");
     h.get_by_label("Target 3 illuminant");
+    h.get_by_label(stackwise::cautions::SHORT);
     // Only the two R targets are marks on the spectrum (the one at 0° in this view).
     h.get_by_label_contains("target 1: R (mean)");
     assert_eq!(h.query_all_by_label_contains("target 3:").count(), 0);

@@ -133,6 +133,10 @@ pub fn targets_ui(
         });
         ui.separator();
     }
+    if targets.iter().any(|t| t.measure == Measure::Gdd) {
+        // GDD targets are for ultrafast laser mirrors.
+        ui.colored_label(ui.visuals().warn_fg_color, crate::cautions::SHORT);
+    }
     if ui.button("Add target").clicked() {
         targets.push(new_target(default_span_nm.0, default_span_nm.1));
         changed = true;
