@@ -75,6 +75,17 @@ fn mirror(lambda_nm: f64, pairs: usize) -> Design {
     base(&layers)
 }
 
+/// A four-layer broadband AR start with targets a* = 0 ± 2, b* = −5 ± 2 and `third`.
+fn neutral_bluish_ar(third: Target) -> Design {
+    let mut d = base(&[("H", 13.0), ("L", 33.0), ("H", 114.0), ("L", 94.0)]);
+    d.targets = vec![
+        colour(ColourCoordinate::A, 0.0, 2.0),
+        colour(ColourCoordinate::B, -5.0, 2.0),
+        third,
+    ];
+    d
+}
+
 fn go(_: &stackwise::optimize::Progress<'_>) -> ControlFlow<()> {
     ControlFlow::Continue(())
 }
@@ -208,20 +219,15 @@ fn refining_a_mirror_moves_gdd_toward_the_goal_and_keeps_it_reflecting() {
 
 #[test]
 fn refining_an_ar_lands_its_reflected_colour_on_the_goal() {
-    // A four-layer broadband AR start; ask for a neutral-bluish reflection, a* 0 ± 2 and
-    // b* −5 ± 2, while R stays low over the visible.
-    let mut d = base(&[("H", 13.0), ("L", 33.0), ("H", 114.0), ("L", 94.0)]);
-    d.targets = vec![
-        colour(ColourCoordinate::A, 0.0, 2.0),
-        colour(ColourCoordinate::B, -5.0, 2.0),
-        Target {
-            from_nm: 450.0,
-            to_nm: 650.0,
-            step_nm: 50.0,
-            weight: 0.2,
-            ..target(Measure::Spectral, TargetKind::AtMost, 0.01, 0.0)
-        },
-    ];
+    // Ask for a neutral-bluish reflection, a* 0 ± 2 and b* −5 ± 2, while R stays low over the
+    // visible.
+    let d = neutral_bluish_ar(Target {
+        from_nm: 450.0,
+        to_nm: 650.0,
+        step_nm: 50.0,
+        weight: 0.2,
+        ..target(Measure::Spectral, TargetKind::AtMost, 0.01, 0.0)
+    });
     let start = evaluate_targets(&d).expect("valid test input");
     assert!(
         !(start.targets[0].pass && start.targets[1].pass),
@@ -302,16 +308,11 @@ fn bad_gdd_and_colour_targets_are_refused_by_name() {
 #[test]
 fn the_command_line_optimises_and_lists_gdd_and_colour_targets() {
     let dir = tempfile::tempdir().expect("valid test input");
-    let mut d = base(&[("H", 13.0), ("L", 33.0), ("H", 114.0), ("L", 94.0)]);
-    d.targets = vec![
-        colour(ColourCoordinate::A, 0.0, 2.0),
-        colour(ColourCoordinate::B, -5.0, 2.0),
-        Target {
-            from_nm: 540.0,
-            to_nm: 560.0,
-            ..target(Measure::Gdd, TargetKind::AtMost, 50.0, 0.0)
-        },
-    ];
+    let d = neutral_bluish_ar(Target {
+        from_nm: 540.0,
+        to_nm: 560.0,
+        ..target(Measure::Gdd, TargetKind::AtMost, 50.0, 0.0)
+    });
     let input = dir.path().join("start.ron");
     file::save(&input, &d).expect("valid test input");
     let (info, _) = common::ok(&["info", input.to_str().expect("utf-8")]);
