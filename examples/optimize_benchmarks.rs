@@ -98,6 +98,7 @@ fn ar_design(
         goal: 0.0,
         tolerance: 0.0,
         weight: 1.0,
+        measure: stackwise::design::Measure::Spectral,
     }];
     d
 }

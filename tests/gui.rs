@@ -586,3 +586,38 @@ fn a_result_for_a_design_edited_meanwhile_is_not_applied_over_the_edit() {
     assert!(h.state().doc().design().name.ends_with("(optimised)"));
     assert!(h.state().doc().is_dirty(), "a new, unsaved design");
 }
+
+#[test]
+fn gdd_and_colour_targets_show_their_values_in_the_panel_and_no_spectrum_mark() {
+    use stackwise::design::{ColourCoordinate, ColourLight, ColourObserver, Measure};
+    let mut h = ar_start();
+    let mut targets = h.state().doc().design().targets.clone();
+    let mut colour = targets[0].clone();
+    colour.measure = Measure::Colour {
+        coordinate: ColourCoordinate::B,
+        illuminant: ColourLight::D65,
+        observer: ColourObserver::TwoDeg,
+    };
+    (colour.kind, colour.goal, colour.tolerance) =
+        (stackwise::design::TargetKind::Equal, -5.0, 2.0);
+    let mut gdd = targets[0].clone();
+    gdd.measure = Measure::Gdd;
+    (gdd.goal, gdd.tolerance) = (0.0, 20.0);
+    targets.push(colour);
+    targets.push(gdd);
+    h.state_mut().push(Edit::SetTargets(targets));
+    h.run();
+    let d = h.state().doc().design().clone();
+    let e = stackwise::optimize::evaluate_targets(&d).unwrap();
+    // The panel row shows the value the evaluator computes, in the target's own unit.
+    h.get_by_label(&format!("b* {:.2}", e.targets[2].values[0]));
+    h.get_by_label_contains("GDD ");
+    h.get_by_label_contains("colour sums 360–780 nm");
+    h.get_by_label("Target 3 colour coordinate");
+    h.get_by_label("Target 3 illuminant");
+    h.get_by_label(stackwise::cautions::SHORT);
+    // Only the two R targets are marks on the spectrum (the one at 0° in this view).
+    h.get_by_label_contains("target 1: R (mean)");
+    assert_eq!(h.query_all_by_label_contains("target 3:").count(), 0);
+    assert_eq!(h.query_all_by_label_contains("target 4:").count(), 0);
+}

@@ -31,6 +31,7 @@ fn target(kind: TargetKind, goal: f64, from_nm: f64, to_nm: f64) -> Target {
         goal,
         tolerance: 0.0,
         weight: 1.0,
+        measure: stackwise::design::Measure::Spectral,
     }
 }
 
@@ -114,6 +115,7 @@ fn self_targets(d: &Design) -> Vec<Target> {
                     goal: v,
                     tolerance: 0.0,
                     weight: 1.0,
+                    measure: stackwise::design::Measure::Spectral,
                 });
             }
         }

@@ -37,6 +37,7 @@ pub fn alternating(layers: usize, aoi_deg: f64, goal: f64) -> Design {
         goal,
         tolerance: 0.0,
         weight: 1.0,
+        measure: stackwise::design::Measure::Spectral,
     }];
     d
 }

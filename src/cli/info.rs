@@ -1,5 +1,5 @@
 //! `stackwise info`: the layer tables of a design (both faces), with QWOT and optical
-//! thickness.
+//! thickness, and its targets in words.
 
 use std::io::Write;
 
@@ -32,6 +32,12 @@ pub(super) fn info(d: &Design, out: &mut dyn Write) -> Result<()> {
             r.back_rows.len(),
             r.back_total_nm()
         )?;
+    }
+    if !d.targets.is_empty() {
+        writeln!(out, "targets:")?;
+        for (i, t) in d.targets.iter().enumerate() {
+            writeln!(out, "  {}. {} (weight {})", i + 1, t.describe(), t.weight)?;
+        }
     }
     Ok(())
 }

@@ -109,6 +109,17 @@ pub fn run(a: &OptimizeArgs, stdout: &mut dyn Write, stderr: &mut dyn Write) -> 
         eval.passed,
         eval.targets.len()
     )?;
+    for (i, (t, r)) in outcome.design.targets.iter().zip(&eval.targets).enumerate() {
+        writeln!(
+            stdout,
+            "target {}: {} — {} (worst deviation {:.6} {})",
+            i + 1,
+            t.describe(),
+            if r.pass { "met" } else { "not met" },
+            r.worst,
+            t.measure.unit()
+        )?;
+    }
     Ok(())
 }
 

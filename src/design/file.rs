@@ -367,6 +367,7 @@ mod tests {
             goal: 0.25,
             tolerance: 0.01,
             weight: 1.0,
+            measure: crate::design::Measure::Spectral,
         }];
         d
     }

@@ -35,7 +35,7 @@ use crate::material::Material;
 
 pub use file::DesignFileError;
 pub use quantity::{Pol, Quantity};
-pub use target::{Target, TargetKind};
+pub use target::{ColourCoordinate, ColourLight, ColourObserver, Measure, Target, TargetKind};
 pub use thickness::{nm_from_optical, nm_from_qwot, optical_nm, qwot, reference_index};
 pub use validate::{DesignError, ResolvedDesign};
 

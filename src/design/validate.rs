@@ -3,7 +3,7 @@
 use crate::material::{Catalog, Material, MaterialError};
 
 use super::target::MAX_TARGET_POINTS;
-use super::{Design, Face, Target};
+use super::{ColourCoordinate, Design, Face, Measure, Quantity, Target};
 
 /// What can be wrong with a design's content (as opposed to its file's syntax).
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -248,6 +248,86 @@ fn check_target(t: &Target) -> Result<(), String> {
             t.aoi_deg
         ));
     }
+    if !t.measure.is_spectral() && t.quantity == Quantity::A {
+        return Err(format!(
+            "a {} target reads reflected (quantity R) or transmitted (quantity T) light, not \
+             absorptance A",
+            measure_name(t.measure)
+        ));
+    }
+    // A colour target integrates over the CIE range; its span is not read.
+    let colour = matches!(t.measure, Measure::Colour { .. });
+    if !colour {
+        check_span(t, positive)?;
+    }
+    check_goal(t)?;
+    if !(t.tolerance.is_finite() && t.tolerance >= 0.0) {
+        return Err(format!(
+            "tolerance must be 0 or a positive {}, got {}",
+            t.measure.unit(),
+            t.tolerance
+        ));
+    }
+    if !(t.weight.is_finite() && t.weight >= 0.0) {
+        return Err(format!(
+            "weight must be 0 or a positive number, got {}",
+            t.weight
+        ));
+    }
+    Ok(())
+}
+
+fn measure_name(m: Measure) -> &'static str {
+    match m {
+        Measure::Spectral => "spectral",
+        Measure::Gdd => "GDD",
+        Measure::Colour { .. } => "colour",
+    }
+}
+
+/// Largest |GDD| goal or tolerance a target may ask for (fs²).
+const MAX_GDD_FS2: f64 = 1e9;
+
+fn check_goal(t: &Target) -> Result<(), String> {
+    match t.measure {
+        Measure::Spectral => {
+            if !(t.goal.is_finite() && (0.0..=1.0).contains(&t.goal)) {
+                return Err(format!(
+                    "goal must be a fraction from 0 to 1 (write 0.05 for 5 %), got {}",
+                    t.goal
+                ));
+            }
+        }
+        Measure::Gdd => {
+            if !(t.goal.is_finite() && t.goal.abs() <= MAX_GDD_FS2) {
+                return Err(format!(
+                    "GDD goal must be a finite number of fs² (at most {MAX_GDD_FS2:e} in size), \
+                     got {}",
+                    t.goal
+                ));
+            }
+        }
+        Measure::Colour { coordinate, .. } => {
+            let (lo, hi) = match coordinate {
+                ColourCoordinate::L => (0.0, 100.0),
+                ColourCoordinate::A | ColourCoordinate::B => (-200.0, 200.0),
+            };
+            if !(t.goal.is_finite() && (lo..=hi).contains(&t.goal)) {
+                return Err(format!(
+                    "colour goal for {} must be a number from {lo} to {hi}, got {}",
+                    coordinate.symbol(),
+                    t.goal
+                ));
+            }
+        }
+    }
+    Ok(())
+}
+
+fn check_span(
+    t: &Target,
+    positive: impl Fn(&str, f64) -> Result<(), String>,
+) -> Result<(), String> {
     positive("from_nm", t.from_nm)?;
     positive("to_nm", t.to_nm)?;
     if t.from_nm > t.to_nm {
@@ -265,24 +345,6 @@ fn check_target(t: &Target) -> Result<(), String> {
                 t.step_nm
             ));
         }
-    }
-    if !(t.goal.is_finite() && (0.0..=1.0).contains(&t.goal)) {
-        return Err(format!(
-            "goal must be a fraction from 0 to 1 (write 0.05 for 5 %), got {}",
-            t.goal
-        ));
-    }
-    if !(t.tolerance.is_finite() && t.tolerance >= 0.0) {
-        return Err(format!(
-            "tolerance must be 0 or a positive fraction, got {}",
-            t.tolerance
-        ));
-    }
-    if !(t.weight.is_finite() && t.weight >= 0.0) {
-        return Err(format!(
-            "weight must be 0 or a positive number, got {}",
-            t.weight
-        ));
     }
     Ok(())
 }
@@ -321,6 +383,7 @@ mod tests {
             goal: 0.9,
             tolerance: 0.01,
             weight: 2.0,
+            measure: crate::design::Measure::Spectral,
         }
     }
 

@@ -345,7 +345,8 @@ pub fn as_overlays(lines: &[OverLine]) -> Vec<super::plots::MeasuredOverlay<'_>>
 
 /// The targets of `design` as marks over the spectrum: a line at the goal over each target's
 /// span (a point for a single wavelength), green when met and red when not; only the targets
-/// at the view's angle of incidence, since the curve is for that angle.
+/// at the view's angle of incidence, since the curve is for that angle. GDD and colour targets
+/// are not R/T/A values and get no mark (the targets panel shows whether they pass).
 #[must_use]
 pub fn target_marks(
     design: &Design,
@@ -356,7 +357,7 @@ pub fn target_marks(
         .targets
         .iter()
         .enumerate()
-        .filter(|(_, t)| (t.aoi_deg - aoi_deg).abs() < 1e-9)
+        .filter(|(_, t)| t.measure.is_spectral() && (t.aoi_deg - aoi_deg).abs() < 1e-9)
         .map(|(i, t)| {
             let pass = match evaluation {
                 Some(Ok(e)) => e.targets.get(i).map(|r| r.pass),

@@ -1,9 +1,14 @@
 //! The targets panel: what the coating must do, one row per target, with its pass/fail from the
-//! last evaluation. Goals and tolerances show in percent; the file keeps fractions.
+//! last evaluation. R/T/A goals and tolerances show in percent (the file keeps fractions); GDD
+//! goals in fs² and colour goals as L*, a* or b* numbers. GDD and colour targets have no mark on
+//! the spectrum; their row says whether they are met, with the computed value.
 
 use egui::{DragValue, RichText};
 
-use crate::design::{Design, Pol, Quantity, Target, TargetKind};
+use crate::design::{
+    ColourCoordinate, ColourLight, ColourObserver, Design, Measure, Pol, Quantity, Target,
+    TargetKind,
+};
 use crate::optimize::Evaluation;
 
 use super::document::Edit;
@@ -23,43 +28,35 @@ pub fn new_target(from_nm: f64, to_nm: f64) -> Target {
         goal: 0.005,
         tolerance: 0.0,
         weight: 1.0,
+        measure: crate::design::Measure::Spectral,
     }
 }
 
 /// The sign people write for a kind: "=", "≤" or "≥".
 #[must_use]
 pub fn kind_sign(kind: TargetKind) -> &'static str {
-    match kind {
-        TargetKind::Equal => "=",
-        TargetKind::AtMost => "≤",
-        TargetKind::AtLeast => "≥",
-    }
+    kind.sign()
 }
 
-/// One target in words, e.g. "R (mean) ≤ 0.5 % at 0°, 420–680 nm".
+/// One target in words, e.g. "R (mean) ≤ 0.5 % at 0°, 420–680 nm" (see [`Target::describe`]).
 #[must_use]
 pub fn describe(t: &Target) -> String {
-    let pol = match t.pol {
-        Pol::S => "s",
-        Pol::P => "p",
-        Pol::Mean => "mean",
-    };
-    let span = if t.to_nm <= t.from_nm {
-        format!("{} nm", t.from_nm)
-    } else {
-        format!("{}–{} nm", t.from_nm, t.to_nm)
-    };
-    format!(
-        "{} ({pol}) {} {} % at {}°, {span}",
-        t.quantity.symbol(),
-        kind_sign(t.kind),
-        round4(t.goal * 100.0),
-        t.aoi_deg
-    )
+    t.describe()
 }
 
-fn round4(x: f64) -> f64 {
-    (x * 1e4).round() / 1e4
+/// A GDD or colour target's computed value in words: "a* 1.23" or "GDD −12.3 to 4.5 fs²";
+/// `None` for R/T/A targets (the spectrum marks show those).
+fn computed(t: &Target, values: &[f64]) -> Option<String> {
+    let lo = values.iter().copied().fold(f64::INFINITY, f64::min);
+    let hi = values.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    match t.measure {
+        Measure::Gdd if values.len() == 1 => Some(format!("GDD {lo:.1} fs²")),
+        Measure::Gdd if !values.is_empty() => Some(format!("GDD {lo:.1} to {hi:.1} fs²")),
+        Measure::Spectral | Measure::Gdd => None,
+        Measure::Colour { coordinate, .. } => values
+            .first()
+            .map(|v| format!("{} {v:.2}", coordinate.symbol())),
+    }
 }
 
 /// The targets table. Returns the edit to make, if the user changed anything.
@@ -95,10 +92,12 @@ pub fn targets_ui(
     let mut swap = None;
     let count = targets.len();
     for (i, t) in targets.iter_mut().enumerate() {
-        let pass = match evaluation {
-            Some(Ok(e)) => e.targets.get(i).map(|r| r.pass),
+        let result = match evaluation {
+            Some(Ok(e)) => e.targets.get(i),
             _ => None,
         };
+        let pass = result.map(|r| r.pass);
+        let shown = result.and_then(|r| computed(t, &r.values));
         ui.push_id(("target", i), |ui| {
             ui.horizontal_wrapped(|ui| {
                 let (mark, colour) = match pass {
@@ -108,6 +107,9 @@ pub fn targets_ui(
                 };
                 ui.label(RichText::new(format!("{}.", i + 1)).strong());
                 ui.colored_label(colour, mark);
+                if let Some(v) = &shown {
+                    ui.label(v);
+                }
                 if ui.small_button("Copy").clicked() {
                     duplicate = Some(i);
                 }
@@ -130,6 +132,10 @@ pub fn targets_ui(
             changed |= target_row_ui(ui, i, t);
         });
         ui.separator();
+    }
+    if targets.iter().any(|t| t.measure == Measure::Gdd) {
+        // GDD targets are for ultrafast laser mirrors.
+        ui.colored_label(ui.visuals().warn_fg_color, crate::cautions::SHORT);
     }
     if ui.button("Add target").clicked() {
         targets.push(new_target(default_span_nm.0, default_span_nm.1));
@@ -156,12 +162,17 @@ fn target_row_ui(ui: &mut egui::Ui, i: usize, t: &mut Target) -> bool {
     let mut changed = false;
     ui.horizontal_wrapped(|ui| {
         let before = t.clone();
+        measure_ui(ui, i, t);
+        let spectral = t.measure.is_spectral();
         let quantity = egui::ComboBox::from_id_salt(("quantity", i))
             .width(40.0)
             .selected_text(t.quantity.symbol())
             .show_ui(ui, |ui| {
                 for q in [Quantity::R, Quantity::T, Quantity::A] {
-                    ui.selectable_value(&mut t.quantity, q, q.describe());
+                    // GDD and colour read reflected or transmitted light only.
+                    if spectral || q != Quantity::A {
+                        ui.selectable_value(&mut t.quantity, q, q.describe());
+                    }
                 }
             });
         quantity
@@ -191,15 +202,36 @@ fn target_row_ui(ui: &mut egui::Ui, i: usize, t: &mut Target) -> bool {
             });
         kind.response
             .accessible_name(format!("Target {} kind", i + 1));
-        percent_ui(ui, "goal", &mut t.goal);
-        percent_ui(ui, "±", &mut t.tolerance);
+        match t.measure {
+            Measure::Spectral => {
+                percent_ui(ui, "goal", &mut t.goal);
+                percent_ui(ui, "±", &mut t.tolerance);
+            }
+            Measure::Gdd => {
+                value_ui(ui, "goal", &mut t.goal, -1e6..=1e6, " fs²");
+                value_ui(ui, "±", &mut t.tolerance, 0.0..=1e6, " fs²");
+            }
+            Measure::Colour { coordinate, .. } => {
+                let range = if coordinate == ColourCoordinate::L {
+                    0.0..=100.0
+                } else {
+                    -200.0..=200.0
+                };
+                value_ui(ui, "goal", &mut t.goal, range, "");
+                value_ui(ui, "±", &mut t.tolerance, 0.0..=100.0, "");
+            }
+        }
         changed |= *t != before;
     });
     ui.horizontal_wrapped(|ui| {
         let before = t.clone();
-        number_ui(ui, "from", &mut t.from_nm, 0.1, " nm");
-        number_ui(ui, "to", &mut t.to_nm, 0.1, " nm");
-        number_ui(ui, "step", &mut t.step_nm, 0.01, " nm");
+        if matches!(t.measure, Measure::Colour { .. }) {
+            ui.label(RichText::new("colour sums 360–780 nm; no span or step").weak());
+        } else {
+            number_ui(ui, "from", &mut t.from_nm, 0.1, " nm");
+            number_ui(ui, "to", &mut t.to_nm, 0.1, " nm");
+            number_ui(ui, "step", &mut t.step_nm, 0.01, " nm");
+        }
         let l = ui.label("at");
         ui.add(
             DragValue::new(&mut t.aoi_deg)
@@ -221,6 +253,107 @@ fn target_row_ui(ui: &mut egui::Ui, i: usize, t: &mut Target) -> bool {
         changed |= *t != before;
     });
     changed
+}
+
+/// What the target measures: R/T/A, GDD or colour, and for colour the coordinate,
+/// illuminant and observer. Switching kind sets a goal in the new kind's unit.
+fn measure_ui(ui: &mut egui::Ui, i: usize, t: &mut Target) {
+    let name = |m: Measure| match m {
+        Measure::Spectral => "R/T/A",
+        Measure::Gdd => "GDD",
+        Measure::Colour { .. } => "colour",
+    };
+    let before = t.measure;
+    let colour = Measure::Colour {
+        coordinate: ColourCoordinate::A,
+        illuminant: ColourLight::D65,
+        observer: ColourObserver::TwoDeg,
+    };
+    egui::ComboBox::from_id_salt(("measure", i))
+        .width(60.0)
+        .selected_text(name(t.measure))
+        .show_ui(ui, |ui| {
+            for m in [Measure::Spectral, Measure::Gdd, colour] {
+                let on = std::mem::discriminant(&t.measure) == std::mem::discriminant(&m);
+                if ui.selectable_label(on, name(m)).clicked() && !on {
+                    t.measure = m;
+                }
+            }
+        })
+        .response
+        .accessible_name(format!("Target {} measures", i + 1));
+    if std::mem::discriminant(&before) != std::mem::discriminant(&t.measure) {
+        // A goal in the old unit means nothing in the new one.
+        (t.goal, t.tolerance) = match t.measure {
+            Measure::Spectral => (0.005, 0.0),
+            Measure::Gdd => (0.0, 20.0),
+            Measure::Colour { .. } => (0.0, 2.0),
+        };
+        t.kind = TargetKind::Equal;
+        if t.quantity == Quantity::A {
+            t.quantity = Quantity::R;
+        }
+    }
+    if let Measure::Colour {
+        coordinate,
+        illuminant,
+        observer,
+    } = &mut t.measure
+    {
+        egui::ComboBox::from_id_salt(("coordinate", i))
+            .width(36.0)
+            .selected_text(coordinate.symbol())
+            .show_ui(ui, |ui| {
+                for c in [
+                    ColourCoordinate::L,
+                    ColourCoordinate::A,
+                    ColourCoordinate::B,
+                ] {
+                    ui.selectable_value(coordinate, c, c.symbol());
+                }
+            })
+            .response
+            .accessible_name(format!("Target {} colour coordinate", i + 1));
+        egui::ComboBox::from_id_salt(("illuminant", i))
+            .width(44.0)
+            .selected_text(illuminant.name())
+            .show_ui(ui, |ui| {
+                for l in [ColourLight::D65, ColourLight::A] {
+                    ui.selectable_value(illuminant, l, l.name());
+                }
+            })
+            .response
+            .accessible_name(format!("Target {} illuminant", i + 1));
+        egui::ComboBox::from_id_salt(("observer", i))
+            .width(40.0)
+            .selected_text(observer.name())
+            .show_ui(ui, |ui| {
+                for o in [ColourObserver::TwoDeg, ColourObserver::TenDeg] {
+                    ui.selectable_value(observer, o, o.name());
+                }
+            })
+            .response
+            .accessible_name(format!("Target {} observer", i + 1));
+    }
+}
+
+/// A goal or tolerance in its own unit (fs², CIELAB units), after its label.
+fn value_ui(
+    ui: &mut egui::Ui,
+    label: &str,
+    v: &mut f64,
+    range: std::ops::RangeInclusive<f64>,
+    suffix: &str,
+) {
+    let l = ui.label(label);
+    ui.add(
+        DragValue::new(v)
+            .range(range)
+            .speed(0.1)
+            .max_decimals(3)
+            .suffix(suffix),
+    )
+    .labelled_by(l.id);
 }
 
 fn number_ui(ui: &mut egui::Ui, label: &str, v: &mut f64, speed: f64, suffix: &str) {

@@ -10,7 +10,8 @@ use super::{Evaluator, OptimizeError};
 pub struct TargetResult {
     /// The wavelengths it samples (nm).
     pub wavelength_nm: Vec<f64>,
-    /// The computed value at each (fraction).
+    /// The computed value at each (a fraction; fs² for GDD; CIELAB units for colour, one value
+    /// and no wavelength).
     pub values: Vec<f64>,
     /// The deviation beyond tolerance at each: 0 where met, signed otherwise (fraction).
     pub deviations: Vec<f64>,
@@ -45,6 +46,7 @@ pub struct Evaluation {
 /// d.targets = vec![Target {
 ///     quantity: Quantity::R, pol: Pol::Mean, aoi_deg: 0.0, from_nm: 500.0, to_nm: 600.0,
 ///     step_nm: 50.0, kind: TargetKind::AtMost, goal: 0.0, tolerance: 0.0, weight: 1.0,
+///     measure: stackwise::design::Measure::Spectral,
 /// }];
 /// let e = stackwise::optimize::evaluate_targets(&d)?;
 /// // Bare 1.5 glass: R = ((1.5 − 1)/(1.5 + 1))² = 0.04 (Fresnel, normal incidence)
@@ -87,6 +89,12 @@ impl Evaluator {
             }
             targets.push(t);
         }
+        let (special, special2, special1) = self.special.results(layers);
+        for (ti, t) in special {
+            targets[ti] = t;
+        }
+        sum2 += special2;
+        sum1 += special1;
         let passed = targets.iter().filter(|t| t.pass).count();
         Evaluation {
             targets,

@@ -27,6 +27,14 @@
 //! least-squares solver are √(w/Σw)·e, whose squared norm is MF². A target passes when every
 //! one of its samples has e = 0.
 //!
+//! GDD targets (one sample per wavelength, value in fs²) and colour targets (one sample, a
+//! CIE 1976 L*, a* or b* over 360–780 nm; the span is ignored) enter the same sums: their
+//! deviation is taken in their own unit and multiplied by 0.01 / unit scale, with
+//! [`GDD_SCALE_FS2`] = 100 fs² and [`COLOUR_SCALE`] = 1 CIELAB unit, so 100 fs² of GDD or one
+//! unit of a* beyond tolerance weighs as much as 1 % of R. Their derivatives are central
+//! differences on the thicknesses ([`SPECIAL_STEP_NM`]); see the `special` module's source
+//! doc.
+//!
 //! # Algorithms
 //!
 //! * [`evaluate_targets`] / [`Evaluator`]: values, deviations and pass/fail per target, and
@@ -53,6 +61,7 @@ mod needle;
 mod problem;
 mod production;
 mod refine;
+mod special;
 
 use crate::design::{Design, DesignError};
 use crate::material::MaterialError;
@@ -62,6 +71,7 @@ pub use needle::needle;
 pub use problem::Evaluator;
 pub use production::{MeritSensitivity, YieldError, merit_sensitivity, tolerance_with_yield};
 pub use refine::refine;
+pub use special::{COLOUR_SCALE, GDD_SCALE_FS2, STEP_NM as SPECIAL_STEP_NM};
 
 /// Why an optimisation stopped.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
@@ -225,6 +235,14 @@ pub enum OptimizeError {
         min_nm: f64,
         /// End of the material's data.
         max_nm: f64,
+    },
+    /// A GDD or colour target cannot be computed for the design.
+    #[error("target {target} cannot be computed: {what}")]
+    TargetComputation {
+        /// 1-based target number.
+        target: usize,
+        /// Why.
+        what: String,
     },
     /// No thickness may change.
     #[error("every layer is locked; unlock at least one layer to optimise")]

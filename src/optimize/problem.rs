@@ -61,6 +61,7 @@ struct Group {
 /// d.targets = vec![Target {
 ///     quantity: Quantity::R, pol: Pol::Mean, aoi_deg: 0.0, from_nm: 550.0, to_nm: 550.0,
 ///     step_nm: 0.0, kind: TargetKind::AtMost, goal: 0.02, tolerance: 0.0, weight: 1.0,
+///     measure: stackwise::design::Measure::Spectral,
 /// }];
 /// let ev = Evaluator::new(&d, &[])?;
 /// let e = ev.evaluate(&ev.layers_of(&d));
@@ -82,8 +83,10 @@ pub struct Evaluator {
     substrate_mm: Option<f64>,
     /// The back face's coating (palette indices; the palette starts with the design's own).
     back_layers: Vec<(usize, f64)>,
-    /// Per target: its points, in wavelength order.
+    /// Per target: its points, in wavelength order (none for GDD and colour targets).
     pub(crate) target_points: Vec<Vec<usize>>,
+    /// GDD and colour targets: their rows follow the points' rows.
+    pub(crate) special: super::special::Specials,
     /// The media of groups 4q..4q+3 tilted for their angles (the last quad repeats its last
     /// group): what every solve of those groups starts from, whatever the layers.
     media: Vec<Media4>,
@@ -117,7 +120,7 @@ impl Evaluator {
         let total_weight: f64 = design
             .targets
             .iter()
-            .map(|t| t.weight * t.wavelengths_nm().len() as f64)
+            .map(|t| t.weight * t.sample_count() as f64)
             .sum();
         if total_weight <= 0.0 {
             return Err(OptimizeError::ZeroWeight);
@@ -140,7 +143,12 @@ impl Evaluator {
         let mut wavelengths: Vec<f64> = Vec::new();
         let mut groups: Vec<Group> = Vec::new();
         let mut points: Vec<Point> = Vec::new();
-        for (ti, t) in design.targets.iter().enumerate() {
+        for (ti, t) in design
+            .targets
+            .iter()
+            .enumerate()
+            .filter(|t| t.1.measure.is_spectral())
+        {
             let wls = t.wavelengths_nm();
             let (from_nm, to_nm) = (t.from_nm, *wls.last().unwrap_or(&t.to_nm));
             for m in palette.iter().chain(media) {
@@ -209,7 +217,22 @@ impl Evaluator {
                 table.push(m.index_at(w)?);
             }
         }
+        let start: Vec<(usize, f64)> = design
+            .layers
+            .iter()
+            .map(|l| {
+                (
+                    palette
+                        .iter()
+                        .position(|m| m.name == l.material)
+                        .unwrap_or(0),
+                    l.nm.get(),
+                )
+            })
+            .collect();
+        let special = super::special::Specials::new(design, &palette, total_weight, &start)?;
         let mut ev = Self {
+            special,
             palette,
             width,
             table,
@@ -304,7 +327,7 @@ impl Evaluator {
     /// Number of residuals (target samples).
     #[must_use]
     pub fn residual_count(&self) -> usize {
-        self.points.len()
+        self.points.len() + self.special.rows()
     }
 
     fn stack<'a>(&'a self, group: usize, layers: &'a [(usize, f64)]) -> StackAt<'a> {
@@ -354,6 +377,9 @@ impl Evaluator {
             out[i] = r;
             sum += r * r;
         }
+        sum += self
+            .special
+            .residuals(layers, &mut out[self.points.len()..]);
         sum.sqrt()
     }
 
@@ -362,7 +388,7 @@ impl Evaluator {
     pub fn merit(&self, layers: &[(usize, f64)]) -> f64 {
         WORK.with_borrow_mut(|(_, buf, r)| {
             r.clear();
-            r.resize(self.points.len(), 0.0);
+            r.resize(self.residual_count(), 0.0);
             self.residuals(layers, buf, r)
         })
     }
@@ -424,6 +450,12 @@ impl Evaluator {
                 }
             }
         });
+        let n = self.points.len();
+        sum += self
+            .special
+            .jacobian(layers, free, &mut residuals[n..], |i, c, v| {
+                jac[(n + i, c)] = v;
+            });
         sum.sqrt()
     }
 
@@ -450,6 +482,7 @@ impl Evaluator {
                 }
             });
         });
+        sum += self.special.add_gradient(layers, grad);
         sum.sqrt()
     }
 }

@@ -60,6 +60,7 @@ pub enum YieldError {
 /// d.targets.push(Target {
 ///     quantity: Quantity::R, pol: Pol::Mean, aoi_deg: 0.0, from_nm: 550.0, to_nm: 550.0,
 ///     step_nm: 0.0, kind: TargetKind::AtMost, goal: 0.05, tolerance: 0.0, weight: 1.0,
+///     measure: stackwise::design::Measure::Spectral,
 /// });
 /// let s = ToleranceSettings { runs: 100, ..ToleranceSettings::default() };
 /// let e = stackwise::optimize::tolerance_with_yield(&d, &[500.0, 550.0], &s, |_| {
@@ -130,6 +131,7 @@ impl MeritSensitivity {
 /// d.targets.push(Target {
 ///     quantity: Quantity::R, pol: Pol::Mean, aoi_deg: 0.0, from_nm: 450.0, to_nm: 650.0,
 ///     step_nm: 10.0, kind: TargetKind::AtMost, goal: 0.0, tolerance: 0.0, weight: 1.0,
+///     measure: stackwise::design::Measure::Spectral,
 /// });
 /// let s = stackwise::optimize::merit_sensitivity(&d)?;
 /// assert!(s.merit > 0.0 && s.layers.iter().all(|l| l.sensitivity > 0.0));
@@ -201,6 +203,7 @@ mod tests {
             goal,
             tolerance: 0.0,
             weight: 1.0,
+            measure: crate::design::Measure::Spectral,
         }];
         d
     }

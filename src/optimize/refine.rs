@@ -186,6 +186,7 @@ pub(crate) fn stop_reason(end: End) -> StopReason {
 /// d.targets = vec![Target {
 ///     quantity: Quantity::R, pol: Pol::Mean, aoi_deg: 0.0, from_nm: 550.0, to_nm: 550.0,
 ///     step_nm: 0.0, kind: TargetKind::AtMost, goal: 0.0, tolerance: 0.0, weight: 1.0,
+///     measure: stackwise::design::Measure::Spectral,
 /// }];
 /// let out = refine(&d, &Options::default(), |_| std::ops::ControlFlow::Continue(()))?;
 /// // The single-layer minimum is the quarter wave, 550 / (4 · 1.38) = 99.64 nm.

@@ -159,6 +159,7 @@ pub fn quarter_wave_with_target(goal: f64) -> stackwise::design::Design {
         goal,
         tolerance: 0.0,
         weight: 1.0,
+        measure: stackwise::design::Measure::Spectral,
     }];
     d
 }
