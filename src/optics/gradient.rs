@@ -472,21 +472,7 @@ mod tests {
     use super::*;
     use crate::optics::solve;
 
-    /// A small xorshift generator: reproducible random stacks without a dependency.
-    struct Rng(u64);
-
-    impl Rng {
-        fn next(&mut self) -> f64 {
-            self.0 ^= self.0 << 13;
-            self.0 ^= self.0 >> 7;
-            self.0 ^= self.0 << 17;
-            (self.0 >> 11) as f64 / (1u64 << 53) as f64
-        }
-
-        fn range(&mut self, lo: f64, hi: f64) -> f64 {
-            lo + (hi - lo) * self.next()
-        }
-    }
+    use crate::optics::test_rng::Rng;
 
     /// Central difference of every response quantity with respect to layer `k`.
     fn central(stack: &StackAt<'_>, wl: f64, aoi: f64, k: usize, h: f64) -> [f64; 4] {

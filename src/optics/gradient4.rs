@@ -486,21 +486,7 @@ mod tests {
     use super::*;
     use crate::optics::{GradientScratch, Side, solve_gradient};
 
-    /// A small xorshift generator: reproducible random stacks without a dependency.
-    struct Rng(u64);
-
-    impl Rng {
-        fn next(&mut self) -> f64 {
-            self.0 ^= self.0 << 13;
-            self.0 ^= self.0 >> 7;
-            self.0 ^= self.0 << 17;
-            (self.0 >> 11) as f64 / (1u64 << 53) as f64
-        }
-
-        fn range(&mut self, lo: f64, hi: f64) -> f64 {
-            lo + (hi - lo) * self.next()
-        }
-    }
+    use crate::optics::test_rng::Rng;
 
     /// Every value and derivative of a gradient, for comparisons.
     fn numbers(g: &Gradient) -> Vec<f64> {

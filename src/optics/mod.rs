@@ -44,6 +44,26 @@ mod simd;
 pub mod thick;
 mod tmm;
 
+/// A small xorshift generator for the solver's tests: reproducible random stacks without a
+/// dependency.
+#[cfg(test)]
+pub(crate) mod test_rng {
+    pub(crate) struct Rng(pub(crate) u64);
+
+    impl Rng {
+        pub(crate) fn next(&mut self) -> f64 {
+            self.0 ^= self.0 << 13;
+            self.0 ^= self.0 >> 7;
+            self.0 ^= self.0 << 17;
+            (self.0 >> 11) as f64 / (1u64 << 53) as f64
+        }
+
+        pub(crate) fn range(&mut self, lo: f64, hi: f64) -> f64 {
+            lo + (hi - lo) * self.next()
+        }
+    }
+}
+
 pub use gradient::{Gradient, GradientScratch, solve_gradient};
 pub use gradient4::{GradientScratch4, solve_gradient4};
 pub use thick::{Face, combine};
