@@ -234,3 +234,34 @@ fn the_fit_uses_the_loaded_curve_and_opens_the_result_as_a_new_design() {
     assert_eq!(a.doc().design().name, "Two layers (fitted)", "shown");
     assert_eq!(a.designs[0].doc.design(), &d, "the original is untouched");
 }
+
+#[test]
+fn sensitivity_bars_sit_beside_the_layer_table() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = design();
+    let path = dir.path().join("design.ron");
+    std::fs::write(&path, file::to_ron_string(&d).unwrap()).unwrap();
+    let mut app = App::new(Some(path));
+    app.force_inline = true;
+    let mut h = harness(app);
+    h.run();
+    let lib = merit_sensitivity(&d).unwrap();
+    let first = format!("{:.3} %", 100.0 * lib.layers[0].sensitivity);
+    assert!(h.query_all_by_label(&first).next().is_none());
+    h.get_by_label("Sensitivity bars").click();
+    h.run();
+    h.run();
+    // The column shows the merit's sensitivity (the design has a target), as the library has it.
+    for l in &lib.layers {
+        let text = format!("{:.3} %", 100.0 * l.sensitivity);
+        assert!(
+            h.query_all_by_label(&text).next().is_some(),
+            "layer {} shows {text}",
+            l.layer
+        );
+    }
+    // Switched off, the column goes.
+    h.get_by_label("Sensitivity bars").click();
+    h.run();
+    assert!(h.query_all_by_label(&first).next().is_none());
+}

@@ -267,7 +267,20 @@ impl App {
             .show(ui, |ui| {
                 let mut out = Vec::new();
                 let i = self.active_index();
-                stack::stack_ui(ui, self.designs[i].doc.design(), &mut self.stack, &mut out);
+                let d = &self.designs[i];
+                let bars = self.stack.show_sensitivity.then(|| {
+                    let active = super::production::Active {
+                        id: d.id,
+                        revision: d.doc.revision(),
+                        design: d.doc.design(),
+                    };
+                    let settled = !ui.ctx().egui_is_using_pointer();
+                    self.production
+                        .sensitivity
+                        .bars(&active, &self.view, settled)
+                });
+                let bars = bars.flatten();
+                stack::stack_ui(ui, d.doc.design(), &mut self.stack, bars.as_ref(), &mut out);
                 self.commands.extend(out.into_iter().map(Command::from));
             });
         if self.windows.targets {

@@ -37,7 +37,21 @@ pub struct StackUi {
     pub scale_factor: f64,
     /// Whether the scale row is open.
     pub scale_open: bool,
+    /// Whether the sensitivity column shows beside the layer table.
+    pub show_sensitivity: bool,
     filter: String,
+}
+
+/// Each front layer's sensitivity to its thickness, for the bar column beside the layer table.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct LayerBars {
+    /// Per layer, layer 1 (on the substrate) first: the change per 1 % thickness change
+    /// (a fraction: of R or T, or of the merit).
+    pub values: Vec<f64>,
+    /// What the values are, in words (the column's hover text).
+    pub what: String,
+    /// Computed for an earlier version of the design (shown faded until recomputed).
+    pub stale: bool,
 }
 
 impl Default for StackUi {
@@ -55,6 +69,7 @@ impl Default for StackUi {
             notation_error: None,
             scale_factor: 1.0,
             scale_open: false,
+            show_sensitivity: false,
             filter: String::new(),
         }
     }
@@ -161,8 +176,15 @@ pub(super) fn colour_of(catalog: &Catalog<'_>, name: &str, reference_nm: f64) ->
         .map_or(theme::UNKNOWN, |(n, k)| theme::material_colour(n, k))
 }
 
-/// The whole left panel.
-pub fn stack_ui(ui: &mut egui::Ui, design: &Design, state: &mut StackUi, out: &mut Vec<Edit>) {
+/// The whole left panel. `bars` are the front layers' sensitivities, when
+/// [`StackUi::show_sensitivity`] is on (or why they could not be computed).
+pub fn stack_ui(
+    ui: &mut egui::Ui,
+    design: &Design,
+    state: &mut StackUi,
+    bars: Option<&Result<LayerBars, String>>,
+    out: &mut Vec<Edit>,
+) {
     if design.substrate_mm.is_none() && state.face == Face::Back {
         state.face = Face::Front;
         state.selected.clear();
@@ -182,7 +204,9 @@ pub fn stack_ui(ui: &mut egui::Ui, design: &Design, state: &mut StackUi, out: &m
         face_switch_ui(ui, design, state);
         ui.horizontal_top(|ui| {
             section::cross_section_ui(ui, design, &catalog, &state.selected, face);
-            ui.vertical(|ui| layer_table_ui(ui, &shown, face, &catalog, state, &mut edits));
+            // The back face's layers have no sensitivity column: the figures are the front's.
+            let bars = bars.filter(|_| face == Face::Front);
+            ui.vertical(|ui| layer_table_ui(ui, &shown, face, &catalog, state, bars, &mut edits));
         });
         buttons_ui(ui, &shown, &catalog, state, &mut edits);
         ui.separator();
@@ -334,25 +358,45 @@ fn layer_table_ui(
     face: Face,
     catalog: &Catalog<'_>,
     state: &mut StackUi,
+    bars: Option<&Result<LayerBars, String>>,
     out: &mut Vec<Edit>,
 ) {
     let what = match face {
         Face::Front => "layers, outermost first",
         Face::Back => "back-face layers, outermost (exit side) first",
     };
-    ui.label(
-        RichText::new(format!(
-            "{} {what}; drag a number to move a layer",
-            design.layers.len()
-        ))
-        .weak(),
-    );
+    ui.horizontal_wrapped(|ui| {
+        ui.label(
+            RichText::new(format!(
+                "{} {what}; drag a number to move a layer",
+                design.layers.len()
+            ))
+            .weak(),
+        );
+        if face == Face::Front {
+            ui.checkbox(&mut state.show_sensitivity, "Sensitivity bars")
+                .on_hover_text(
+                    "a bar per layer: how much the result changes when that layer is 1 % \
+                     thicker or thinner — the longest bars are the layers the chamber must \
+                     hit most precisely",
+                );
+        }
+    });
+    let bars = match bars {
+        Some(Err(e)) => {
+            ui.colored_label(ui.visuals().error_fg_color, format!("sensitivity: {e}"));
+            None
+        }
+        Some(Ok(b)) if b.values.len() == design.layers.len() => Some(b),
+        _ => None,
+    };
+    let top = bars.map_or(0.0, |b| b.values.iter().copied().fold(0.0, f64::max));
     egui::ScrollArea::vertical()
         .id_salt("layer-table")
         .max_height(STRIP_HEIGHT - 20.0)
         .show(ui, |ui| {
             egui::Grid::new("layers")
-                .num_columns(5)
+                .num_columns(if bars.is_some() { 6 } else { 5 })
                 .striped(true)
                 .show(ui, |ui| {
                     ui.strong("#");
@@ -360,13 +404,51 @@ fn layer_table_ui(
                     ui.strong("nm");
                     ui.strong("QWOT");
                     ui.strong("Lock");
+                    if let Some(b) = bars {
+                        ui.strong("per 1 %").on_hover_text(&b.what);
+                    }
                     ui.end_row();
                     for i in (0..design.layers.len()).rev() {
                         layer_row_ui(ui, design, catalog, state, out, i);
+                        if let Some(b) = bars {
+                            sensitivity_bar_ui(ui, b, top, i);
+                        }
                         ui.end_row();
                     }
                 });
         });
+}
+
+/// Width of a full sensitivity bar (points).
+const BAR_WIDTH: f32 = 60.0;
+
+/// Layer `i`'s sensitivity bar, its length relative to the largest (`top`), its value beside.
+fn sensitivity_bar_ui(ui: &mut egui::Ui, bars: &LayerBars, top: f64, i: usize) {
+    let value = bars.values[i];
+    let share = if top > 0.0 { (value / top) as f32 } else { 0.0 };
+    let text = format!("{:.3} %", 100.0 * value);
+    ui.horizontal(|ui| {
+        let (rect, r) = ui.allocate_exact_size(
+            egui::vec2(BAR_WIDTH, ui.spacing().interact_size.y * 0.6),
+            egui::Sense::hover(),
+        );
+        let mut colour = ui.visuals().selection.bg_fill;
+        if bars.stale {
+            colour = colour.gamma_multiply(0.4);
+        }
+        let mut bar = rect;
+        bar.set_width(BAR_WIDTH * share.clamp(0.0, 1.0));
+        ui.painter().rect_filled(bar, 2.0, colour);
+        ui.painter().rect_stroke(
+            rect,
+            2.0,
+            ui.visuals().widgets.noninteractive.bg_stroke,
+            egui::StrokeKind::Inside,
+        );
+        r.on_hover_text(format!("layer {}: {text} — {}", i + 1, bars.what));
+        ui.label(RichText::new(text).small().weak())
+            .on_hover_text(format!("layer {} sensitivity", i + 1));
+    });
 }
 
 fn layer_row_ui(

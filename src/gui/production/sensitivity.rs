@@ -9,6 +9,7 @@ use crate::analysis::sensitivity::{LayerSensitivity, rank, sensitivity};
 use crate::design::{Pol, Quantity};
 use crate::gui::designs::DesignId;
 use crate::gui::plots::ViewSettings;
+use crate::gui::stack::LayerBars;
 use crate::optimize::merit_sensitivity;
 
 /// Wavelengths of the spectrum's RMS over the view's range.
@@ -65,6 +66,30 @@ impl SensitivityView {
             .cached
             .get_or_insert_with(|| (key, compute(active, view, quantity, merit)))
             .1
+    }
+
+    /// The figures for the bar column beside the layer table: the tab's own (same settings,
+    /// same cache). While `recompute` is false (a thickness is being dragged) the last figures
+    /// for this design stay up, marked stale, rather than recomputing on every frame.
+    pub fn bars(
+        &mut self,
+        active: &Active<'_>,
+        view: &ViewSettings,
+        recompute: bool,
+    ) -> Option<Result<LayerBars, String>> {
+        let bars = |shown: &Result<Shown, String>, stale: bool| {
+            shown.as_ref().map_err(Clone::clone).map(|s| LayerBars {
+                values: s.layers.iter().map(|l| l.sensitivity).collect(),
+                what: s.what.clone(),
+                stale,
+            })
+        };
+        if !recompute {
+            let (key, shown) = self.cached.as_ref()?;
+            let current = key.0 == active.id && key.1 == active.revision;
+            return (key.0 == active.id).then(|| bars(shown, !current));
+        }
+        Some(bars(self.shown(active, view), false))
     }
 
     /// The tab's contents.
