@@ -8,7 +8,7 @@ use num_complex::Complex64;
 use serde::{Deserialize, Serialize};
 
 use super::MaterialError;
-use crate::table::interp::held;
+use crate::table::interp::{held, held_each};
 
 /// Photon energy in eV times wavelength in µm (h c / e), as used by the Lorentz–Drude form.
 pub const EV_UM: f64 = 1.239_841_984;
@@ -206,8 +206,7 @@ impl Model {
                 real_sqrt(n2)
             }
             Model::Table { rows } => {
-                let n = held(rows, wavelength_nm, |r| r.0, |r| r.1);
-                let k = held(rows, wavelength_nm, |r| r.0, |r| r.2);
+                let [n, k] = held_each(rows, wavelength_nm, |r| r.0, |r| [r.1, r.2]);
                 Complex64::new(n, k)
             }
             Model::WithK { n, k } => {

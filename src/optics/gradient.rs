@@ -380,7 +380,7 @@ pub(super) fn finish_gradient(
             stack,
             wavelength_nm,
             Side::Front,
-            &[Some(front.result), None, None, None],
+            [Some(&front.result), None, None, None],
         );
         for k in 0..n {
             fill(out, front, k, None);
@@ -391,7 +391,12 @@ pub(super) fn finish_gradient(
         stack,
         wavelength_nm,
         Side::Front,
-        &[Some(front.result), Some(inside.result), Some(back_in), None],
+        [
+            Some(&front.result),
+            Some(&inside.result),
+            Some(&back_in),
+            None,
+        ],
     );
     // Partial derivatives of the incoherent combination (formulas in `thick`).
     let tau = thick::internal_transmittance(setup.back_in.0.q, substrate_mm * 1e6, wavelength_nm);

@@ -14,8 +14,9 @@
 
 use num_complex::Complex64;
 
+use super::Response;
 use super::simd::{self, F4, Level};
-use super::tmm::{BIG, Coherent, RENORM_EVERY, SMALL, Tilted, finish, renorm_factor};
+use super::tmm::{Amplitudes, BIG, Coherent, RENORM_EVERY, SMALL, Tilted, finish, renorm_factor};
 
 /// Four complex numbers, real and imaginary parts in separate lanes.
 #[derive(Clone, Copy, Debug)]
@@ -106,6 +107,8 @@ pub(crate) struct Tilted4 {
 impl Tilted4 {
     /// Tilts four indices for four Snell invariants at once: [`Tilted::new`] lane by lane,
     /// branch-free (both roots are formed and the right one chosen), so it vectorises.
+    /// Always inlined, so inside [`front4`] it is compiled for the chosen instruction set.
+    #[inline(always)]
     pub(crate) fn new(n: [Complex64; 4], snell: [f64; 4]) -> Self {
         let (nr, ni) = (F4(n.map(|z| z.re)), F4(n.map(|z| z.im)));
         let s = F4(snell);
@@ -231,6 +234,169 @@ pub(crate) fn coherent4_at<'a>(
             ),
         }
     })
+}
+
+/// The most common problem, four points at once from start to end: light from the front onto
+/// a coating on a semi-infinite substrate. Everything per point — tilting the media, the layer
+/// loop, and R, T, A and the amplitudes — runs in lanes, in the best instruction set
+/// available; only a point whose scale is extreme (a layer loop that needed rescaling by many
+/// orders of magnitude) is finished one lane at a time. Same results as the general path of
+/// [`super::solve4`] to rounding.
+pub(crate) struct Front4<'a> {
+    /// Each point's incident index (its real part counts: the incident medium is transparent).
+    pub(crate) incident: [Complex64; 4],
+    /// Each point's substrate index.
+    pub(crate) substrate: [Complex64; 4],
+    /// Each point's layer-material indices (the same materials in every lane).
+    pub(crate) materials: [&'a [Complex64]; 4],
+    /// The layers, deposition order: (material, nm).
+    pub(crate) layers: &'a [(usize, f64)],
+    /// Angle of incidence of each point (radians).
+    pub(crate) aoi_rad: [f64; 4],
+    /// Vacuum wavelength of each point (nm).
+    pub(crate) wavelength_nm: [f64; 4],
+    /// Buffer for the tilted layer materials.
+    pub(crate) packed: &'a mut Vec<Tilted4>,
+}
+
+impl pulp::WithSimd for Front4<'_> {
+    type Output = [Response; 4];
+
+    #[inline(always)]
+    fn with_simd<S: pulp::Simd>(self, _simd: S) -> Self::Output {
+        let n0 = F4(self.incident.map(|n| n.re));
+        let snell_f4 = n0 * F4(self.aoi_rad.map(f64::sin));
+        let snell = snell_f4.0;
+        self.packed.clear();
+        let materials = self.materials;
+        self.packed.extend(
+            (0..materials[0].len())
+                .map(|m| Tilted4::new(std::array::from_fn(|i| materials[i][m]), snell)),
+        );
+        let sub = Tilted4::new(self.substrate, snell);
+        let k0 = F4(self.wavelength_nm.map(|w| std::f64::consts::TAU / w));
+        let layers = self.layers.iter().map(|&(m, d)| (&self.packed[m], d));
+        let ([(bs, cs), (bp, cp)], log_s, log_p) = product4(layers, [sub.eta_s, sub.eta_p], k0);
+        // The incident medium is transparent and the angle below 90°: q₀ = n₀ cos θ₀ is real.
+        let q0 = (n0 * n0 - snell_f4 * snell_f4).map(f64::sqrt);
+        let eta0_p = (n0 * n0).zip(q0, |a, b| a / b);
+        // t_p's factor cos θ₀ / cos θ_sub = (q₀ / n₀) · (N_sub / q_sub).
+        let cos0 = q0.zip(n0, |a, b| a / b);
+        let n_sub = Cx4::gather(self.substrate);
+        let ratio = n_sub.mul(sub.inv_eta_s);
+        let t_factor_p = Cx4 {
+            re: ratio.re * cos0,
+            im: ratio.im * cos0,
+        };
+        let one = Cx4 {
+            re: F4::ONE,
+            im: F4::ZERO,
+        };
+        let s = finish4(q0, bs, cs, sub.eta_s, one, log_s);
+        let p = finish4(eta0_p, bp, cp, sub.eta_p, t_factor_p, log_p);
+        std::array::from_fn(|i| {
+            let (s, p) = (s.lane(i), p.lane(i));
+            Response {
+                r_s: s.reflectance,
+                r_p: p.reflectance,
+                t_s: s.transmittance,
+                t_p: p.transmittance,
+                a_s: s.absorptance,
+                a_p: p.absorptance,
+                amp_r_s: s.r,
+                amp_r_p: p.r,
+                amp_t_s: s.t,
+                amp_t_p: p.t,
+            }
+        })
+    }
+}
+
+/// R, T, A and amplitudes of one polarisation in four lanes, or what to finish lane by lane.
+enum Finished4 {
+    /// Every lane done in lanes.
+    Lanes {
+        r: Cx4,
+        t: Cx4,
+        reflectance: F4,
+        transmittance: F4,
+        absorptance: F4,
+    },
+    /// Some lane's scale is extreme: each lane by [`finish`] (the careful formulas).
+    OneByOne([Amplitudes; 4]),
+}
+
+impl Finished4 {
+    fn lane(&self, i: usize) -> Amplitudes {
+        match self {
+            Self::Lanes {
+                r,
+                t,
+                reflectance,
+                transmittance,
+                absorptance,
+            } => Amplitudes {
+                r: r.lane(i),
+                t: t.lane(i),
+                reflectance: reflectance.0[i],
+                transmittance: transmittance.0[i],
+                absorptance: absorptance.0[i],
+            },
+            Self::OneByOne(a) => a[i],
+        }
+    }
+}
+
+/// [`finish`] for four lanes with a transparent incident medium (real `eta0`): the same
+/// formulas, in lanes, when every lane's scale e^(−`log_scale`) and |η₀B + C|² are far from
+/// overflow and underflow (all but extreme stacks); otherwise lane by lane through `finish`.
+#[inline(always)]
+fn finish4(eta0: F4, b: Cx4, c: Cx4, eta_sub: Cx4, t_factor: Cx4, log_scale: F4) -> Finished4 {
+    let den = Cx4 {
+        re: eta0 * b.re + c.re,
+        im: eta0 * b.im + c.im,
+    };
+    let den2 = den.re * den.re + den.im * den.im;
+    let tame = (0..4).all(|i| log_scale.0[i].abs() < 150.0 && (1e-150..1e150).contains(&den2.0[i]));
+    if !tame {
+        return Finished4::OneByOne(std::array::from_fn(|i| {
+            finish(
+                Complex64::new(eta0.0[i], 0.0),
+                b.lane(i),
+                c.lane(i),
+                eta_sub.lane(i),
+                t_factor.lane(i),
+                log_scale.0[i],
+            )
+        }));
+    }
+    let inv_den2 = F4::ONE.zip(den2, |a, b| a / b);
+    let inv_den = Cx4 {
+        re: den.re * inv_den2,
+        im: -(den.im * inv_den2),
+    };
+    let num = Cx4 {
+        re: eta0 * b.re - c.re,
+        im: eta0 * b.im - c.im,
+    };
+    let r = num.mul(inv_den);
+    let four = F4::splat(4.0) * eta0 * inv_den2;
+    let scale = (-log_scale).exp();
+    let transmittance = four * eta_sub.re * (scale * scale);
+    // Re(B C*)
+    let bc = b.re * c.re + b.im * c.im;
+    let t_amp = inv_den.mul(t_factor);
+    let two_eta0_scale = F4::splat(2.0) * eta0 * scale;
+    Finished4::Lanes {
+        reflectance: r.re * r.re + r.im * r.im,
+        r,
+        t: Cx4 {
+            re: t_amp.re * two_eta0_scale,
+            im: t_amp.im * two_eta0_scale,
+        },
+        transmittance,
+        absorptance: four * bc - transmittance,
+    }
 }
 
 /// [`product4`] as an operation for [`simd::run_at`].

@@ -172,6 +172,22 @@ struct Setup {
 
 impl Setup {
     fn new(stack: &StackAt<'_>, aoi_rad: f64, side: Side) -> Self {
+        let blank = Tilted::new(Complex64::ONE, 0.0);
+        let mut setup = Self {
+            snell: 0.0,
+            front_out: (blank, blank),
+            front_in: (blank, blank),
+            back_in: (blank, blank),
+            back_out: (blank, blank),
+            need: [false; 4],
+        };
+        setup.refill(stack, aoi_rad, side);
+        setup
+    }
+
+    /// [`Setup::new`] in place: only the problems the point needs are tilted and written (the
+    /// others keep whatever they held, and are never read).
+    fn refill(&mut self, stack: &StackAt<'_>, aoi_rad: f64, side: Side) {
         let real = |n: Complex64| Complex64::new(n.re, 0.0);
         // The medium the light starts in fixes the Snell invariant.
         let from = match (side, stack.substrate_mm) {
@@ -187,33 +203,28 @@ impl Setup {
             thick,
             thick && side == Side::Back,
         ];
-        // A thick substrate keeps its complex index in every sub-problem; a semi-infinite one
-        // that the light starts in counts as transparent.
-        let sub_inside = if thick {
-            stack.substrate
-        } else {
-            real(stack.substrate)
-        };
         let tilt = |n: Complex64| Tilted::new(n, snell);
         let sub = tilt(stack.substrate);
-        let unused = (sub, sub);
-        let pair = |i: usize, make: &dyn Fn() -> (Tilted, Tilted)| {
-            if need[i] { make() } else { unused }
-        };
-        Self {
-            snell,
-            front_out: pair(0, &|| (tilt(real(stack.incident)), sub)),
-            front_in: pair(1, &|| {
-                let inside = if sub_inside == stack.substrate {
-                    sub
-                } else {
-                    tilt(sub_inside)
-                };
-                (inside, tilt(stack.incident))
-            }),
-            back_in: pair(2, &|| (sub, tilt(stack.exit))),
-            back_out: pair(3, &|| (tilt(real(stack.exit)), sub)),
-            need,
+        self.snell = snell;
+        self.need = need;
+        if need[0] {
+            self.front_out = (tilt(real(stack.incident)), sub);
+        }
+        if need[1] {
+            // A thick substrate keeps its complex index in every sub-problem; a semi-infinite
+            // one that the light starts in counts as transparent.
+            let inside = if thick || stack.substrate.im == 0.0 {
+                sub
+            } else {
+                tilt(real(stack.substrate))
+            };
+            self.front_in = (inside, tilt(stack.incident));
+        }
+        if need[2] {
+            self.back_in = (sub, tilt(stack.exit));
+        }
+        if need[3] {
+            self.back_out = (tilt(real(stack.exit)), sub);
         }
     }
 
@@ -224,9 +235,10 @@ impl Setup {
         stack: &StackAt<'_>,
         wavelength_nm: f64,
         side: Side,
-        solved: &[Option<Coherent>; 4],
+        solved: [Option<&Coherent>; 4],
     ) -> Response {
-        let [front_out, front_in, back_in, back_out] = solved.map(Option::unwrap_or_default);
+        let [front_out, front_in, back_in, back_out] =
+            solved.map(|c| c.copied().unwrap_or_default());
         let Some(substrate_mm) = stack.substrate_mm else {
             return match side {
                 Side::Front => front_out.response(),
@@ -314,7 +326,12 @@ pub fn solve(
             }
         })
     });
-    setup.assemble(stack, wavelength_nm, side, &solved)
+    setup.assemble(
+        stack,
+        wavelength_nm,
+        side,
+        solved.each_ref().map(Option::as_ref),
+    )
 }
 
 /// The order a coherent sub-problem takes a face's layers in: its loop starts at the layer
@@ -360,7 +377,9 @@ impl Media4 {
     /// [`Media4::new`] into existing buffers.
     fn refill(&mut self, stacks: [&StackAt<'_>; 4], aoi_rad: [f64; 4], side: Side) {
         self.side = side;
-        self.setups = std::array::from_fn(|i| Setup::new(stacks[i], aoi_rad[i], side));
+        for (i, setup) in self.setups.iter_mut().enumerate() {
+            setup.refill(stacks[i], aoi_rad[i], side);
+        }
         self.tilt_materials(stacks);
     }
 
@@ -380,6 +399,8 @@ impl Media4 {
 #[derive(Debug, Default)]
 pub struct Scratch4 {
     media: Option<Media4>,
+    /// The layer materials tilted in lanes (light from the front, semi-infinite substrate).
+    packed: Vec<lanes::Tilted4>,
 }
 
 /// [`solve`] for four points at once in SIMD lanes — four wavelengths of a spectrum or four
@@ -393,6 +414,19 @@ pub fn solve4(
     side: Side,
     scratch: &mut Scratch4,
 ) -> [Response; 4] {
+    if side == Side::Front && stacks[0].substrate_mm.is_none() {
+        // The common case, in lanes from start to end.
+        let front = lanes::Front4 {
+            incident: stacks.map(|s| s.incident),
+            substrate: stacks.map(|s| s.substrate),
+            materials: stacks.map(|s| s.materials),
+            layers: stacks[0].layers,
+            aoi_rad,
+            wavelength_nm,
+            packed: &mut scratch.packed,
+        };
+        return simd::run_at(simd::Level::best(), front);
+    }
     let media = match &mut scratch.media {
         Some(media) => {
             media.refill(stacks, aoi_rad, side);
@@ -437,7 +471,7 @@ pub fn solve4_with(
             stacks[i],
             wavelength_nm[i],
             side,
-            &solved.map(|p| p.map(|four| four[i])),
+            solved.each_ref().map(|p| p.as_ref().map(|four| &four[i])),
         )
     })
 }

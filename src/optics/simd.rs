@@ -77,21 +77,132 @@ impl F4 {
     /// NaN.
     #[inline(always)]
     pub(crate) fn sin_cos(self) -> (Self, Self) {
-        let a = self.0;
-        let [(s0, c0), (s1, c1), (s2, c2), (s3, c3)] = [
-            sin_cos_lane(a[0]),
-            sin_cos_lane(a[1]),
-            sin_cos_lane(a[2]),
-            sin_cos_lane(a[3]),
+        // π/2 in three parts; the first two have short mantissas so y·DP1, y·DP2 are exact for
+        // moderate y (Cephes' DP1..DP3 for π/4, doubled).
+        const DP1: f64 = 7.853_981_554_508_209_228_515_625E-1 * 2.0;
+        const DP2: f64 = 7.946_627_356_147_928_367_14E-9 * 2.0;
+        const DP3: f64 = 3.061_616_997_868_382_943_07E-17 * 2.0;
+        // Minimax coefficients of sin and cos on [−π/4, π/4] (Cephes, sin.c).
+        const S: [f64; 6] = [
+            -1.666_666_666_666_663_072_95E-1,
+            8.333_333_333_322_118_588_78E-3,
+            -1.984_126_982_958_953_859_96E-4,
+            2.755_731_362_138_572_452_13E-6,
+            -2.505_074_776_285_780_728_66E-8,
+            1.589_623_015_765_465_680_60E-10,
         ];
-        (Self([s0, s1, s2, s3]), Self([c0, c1, c2, c3]))
+        const C: [f64; 6] = [
+            4.166_666_666_666_659_292_18E-2,
+            -1.388_888_888_887_305_641_16E-3,
+            2.480_158_728_885_170_453_48E-5,
+            -2.755_731_417_929_673_881_12E-7,
+            2.087_570_084_197_473_167_78E-9,
+            -1.135_853_652_138_768_173_00E-11,
+        ];
+        // Every step works on all four lanes at once, so each is one vector instruction.
+        let xa = self.abs();
+        let rounded = xa * Self::splat(std::f64::consts::FRAC_2_PI) + Self::splat(ROUND);
+        let q = rounded.bits();
+        let y = rounded - Self::splat(ROUND);
+        let r = ((xa - y * Self::splat(DP1)) - y * Self::splat(DP2)) - y * Self::splat(DP3);
+        let r2 = r * r;
+        let r4 = r2 * r2;
+        // Estrin's scheme: shorter dependency chains than Horner's.
+        let ps = estrin(&S, r2, r4);
+        let pc = estrin(&C, r2, r4);
+        let s = r + r * r2 * ps;
+        let c = (Self::ONE - Self::splat(0.5) * r2) + r4 * pc;
+        // Odd quadrants swap sine and cosine.
+        let swap = q.map(|q| (q & 1).wrapping_neg());
+        let (sin1, cos1) = (s.select(swap, c), c.select(swap, s));
+        // Sign of sine: quadrant bit 1 and the sign of x; of cosine: bit 1 of q + 1.
+        let x = self.bits();
+        let sin_sign = U4(std::array::from_fn(|i| ((q.0[i] << 62) ^ x.0[i]) & SIGN));
+        let cos_sign = q.map(|q| (q.wrapping_add(1) << 62) & SIGN);
+        (sin1.flip_signs(sin_sign), cos1.flip_signs(cos_sign))
     }
 
     /// e^x for each lane with x ≤ 709 (larger gives infinity); results below the smallest
     /// normal number (x < −708.4) are flushed to 0.
     #[inline(always)]
     pub(crate) fn exp(self) -> Self {
-        self.map(exp_lane)
+        // ln 2 in two parts, the first with a short mantissa so r·LN2_HI is exact (fdlibm).
+        const LN2_HI: f64 = 0.693_145_751_953_125;
+        const LN2_LO: f64 = 1.428_606_820_309_417_232_12E-6;
+        // 1/k! for k = 2..13.
+        const P: [f64; 12] = [
+            1.0 / 2.0,
+            1.0 / 6.0,
+            1.0 / 24.0,
+            1.0 / 120.0,
+            1.0 / 720.0,
+            1.0 / 5040.0,
+            1.0 / 40_320.0,
+            1.0 / 362_880.0,
+            1.0 / 3_628_800.0,
+            1.0 / 39_916_800.0,
+            1.0 / 479_001_600.0,
+            1.0 / 6_227_020_800.0,
+        ];
+        let rounded = self * Self::splat(std::f64::consts::LOG2_E) + Self::splat(ROUND);
+        let r = rounded - Self::splat(ROUND);
+        let f = (self - r * Self::splat(LN2_HI)) - r * Self::splat(LN2_LO);
+        // Taylor series of e^f − 1 to f¹³ on |f| ≤ ln2/2: the first omitted term is below
+        // 0.35¹⁴/14! ≈ 4e-18.
+        let f2 = f * f;
+        let f4 = f2 * f2;
+        let f8 = f4 * f4;
+        let p = |k: usize| Self::splat(P[k]);
+        // e^f − 1 = f + f²·(P0 + P1 f + … + P11 f¹¹)
+        let lo = (p(0) + p(1) * f) + (p(2) + p(3) * f) * f2;
+        let mid = (p(4) + p(5) * f) + (p(6) + p(7) * f) * f2;
+        let hi = (p(8) + p(9) * f) + (p(10) + p(11) * f) * f2;
+        let z = Self::ONE + (f + f2 * (lo + mid * f4 + hi * f8));
+        // 2^r from the exponent bits: the low bits of `rounded` hold r (two's complement).
+        let pow2 = Self(
+            rounded
+                .bits()
+                .map(|b| b.wrapping_add(1023) << 52)
+                .0
+                .map(f64::from_bits),
+        );
+        let v = z * pow2;
+        let under = r.zip(v, |r, v| if r < -1022.0 { 0.0 } else { v });
+        r.zip(under, |r, v| if r > 1023.0 { f64::INFINITY } else { v })
+    }
+
+    /// The lanes' bit patterns.
+    #[inline(always)]
+    fn bits(self) -> U4 {
+        U4(self.0.map(f64::to_bits))
+    }
+
+    /// `o` where `mask` is all ones and `self` where it is zero, bit by bit.
+    #[inline(always)]
+    fn select(self, mask: U4, o: Self) -> Self {
+        let (a, b) = (o.bits(), self.bits());
+        Self(std::array::from_fn(|i| {
+            f64::from_bits((a.0[i] & mask.0[i]) | (b.0[i] & !mask.0[i]))
+        }))
+    }
+
+    /// Each lane with its sign bit flipped where `sign` has it set.
+    #[inline(always)]
+    fn flip_signs(self, sign: U4) -> Self {
+        let b = self.bits();
+        Self(std::array::from_fn(|i| f64::from_bits(b.0[i] ^ sign.0[i])))
+    }
+}
+
+/// Four `u64` lanes: the bit patterns of an [`F4`].
+#[derive(Clone, Copy, Debug)]
+struct U4([u64; 4]);
+
+impl U4 {
+    #[inline(always)]
+    fn map(self, f: impl Fn(u64) -> u64) -> Self {
+        let a = self.0;
+        Self([f(a[0]), f(a[1]), f(a[2]), f(a[3])])
     }
 }
 
@@ -146,112 +257,11 @@ impl std::ops::SubAssign for F4 {
 const ROUND: f64 = 6_755_399_441_055_744.0;
 const SIGN: u64 = 1 << 63;
 
-/// Chooses `a` where `mask` is all ones and `b` where it is zero, bit by bit.
-#[inline(always)]
-fn select(mask: u64, a: f64, b: f64) -> f64 {
-    f64::from_bits((a.to_bits() & mask) | (b.to_bits() & !mask))
-}
-
-/// One lane of [`F4::sin_cos`], branch-free.
-#[inline(always)]
-fn sin_cos_lane(x: f64) -> (f64, f64) {
-    // π/2 in three parts; the first two have short mantissas so y·DP1, y·DP2 are exact for
-    // moderate y (Cephes' DP1..DP3 for π/4, doubled).
-    const DP1: f64 = 7.853_981_554_508_209_228_515_625E-1 * 2.0;
-    const DP2: f64 = 7.946_627_356_147_928_367_14E-9 * 2.0;
-    const DP3: f64 = 3.061_616_997_868_382_943_07E-17 * 2.0;
-    // Minimax coefficients of sin and cos on [−π/4, π/4] (Cephes, sin.c).
-    const S: [f64; 6] = [
-        -1.666_666_666_666_663_072_95E-1,
-        8.333_333_333_322_118_588_78E-3,
-        -1.984_126_982_958_953_859_96E-4,
-        2.755_731_362_138_572_452_13E-6,
-        -2.505_074_776_285_780_728_66E-8,
-        1.589_623_015_765_465_680_60E-10,
-    ];
-    const C: [f64; 6] = [
-        4.166_666_666_666_659_292_18E-2,
-        -1.388_888_888_887_305_641_16E-3,
-        2.480_158_728_885_170_453_48E-5,
-        -2.755_731_417_929_673_881_12E-7,
-        2.087_570_084_197_473_167_78E-9,
-        -1.135_853_652_138_768_173_00E-11,
-    ];
-    let xa = x.abs();
-    let rounded = xa * std::f64::consts::FRAC_2_PI + ROUND;
-    let q = rounded.to_bits();
-    let y = rounded - ROUND;
-    let r = ((xa - y * DP1) - y * DP2) - y * DP3;
-    let r2 = r * r;
-    let r4 = r2 * r2;
-    // Estrin's scheme: shorter dependency chains than Horner's.
-    let ps = estrin(&S, r2, r4);
-    let pc = estrin(&C, r2, r4);
-    let s = r + r * r2 * ps;
-    let c = (1.0 - 0.5 * r2) + r4 * pc;
-    // Odd quadrants swap sine and cosine.
-    let swap = (q & 1).wrapping_neg();
-    let sin1 = select(swap, c, s);
-    let cos1 = select(swap, s, c);
-    // Sign of sine: quadrant bit 1 and the sign of x; of cosine: bit 1 of q + 1.
-    let sin_sign = ((q << 62) ^ x.to_bits()) & SIGN;
-    let cos_sign = (q.wrapping_add(1) << 62) & SIGN;
-    (
-        f64::from_bits(sin1.to_bits() ^ sin_sign),
-        f64::from_bits(cos1.to_bits() ^ cos_sign),
-    )
-}
-
 /// p₀ + p₁z + … + p₅z⁵ with z = `z`, `z2` = z², by Estrin's scheme.
 #[inline(always)]
-fn estrin(p: &[f64; 6], z: f64, z2: f64) -> f64 {
-    (p[0] + p[1] * z) + (p[2] + p[3] * z) * z2 + (p[4] + p[5] * z) * (z2 * z2)
-}
-
-/// One lane of [`F4::exp`], branch-free.
-#[inline(always)]
-fn exp_lane(x: f64) -> f64 {
-    // ln 2 in two parts, the first with a short mantissa so r·LN2_HI is exact (fdlibm).
-    const LN2_HI: f64 = 0.693_145_751_953_125;
-    const LN2_LO: f64 = 1.428_606_820_309_417_232_12E-6;
-    // 1/k! for k = 2..13.
-    const P: [f64; 12] = [
-        1.0 / 2.0,
-        1.0 / 6.0,
-        1.0 / 24.0,
-        1.0 / 120.0,
-        1.0 / 720.0,
-        1.0 / 5040.0,
-        1.0 / 40_320.0,
-        1.0 / 362_880.0,
-        1.0 / 3_628_800.0,
-        1.0 / 39_916_800.0,
-        1.0 / 479_001_600.0,
-        1.0 / 6_227_020_800.0,
-    ];
-    let rounded = x * std::f64::consts::LOG2_E + ROUND;
-    let r = rounded - ROUND;
-    let f = (x - r * LN2_HI) - r * LN2_LO;
-    // Taylor series of e^f − 1 to f¹³ on |f| ≤ ln2/2: the first omitted term is below
-    // 0.35¹⁴/14! ≈ 4e-18.
-    let f2 = f * f;
-    let f4 = f2 * f2;
-    let f8 = f4 * f4;
-    // e^f − 1 = f + f²·(P0 + P1 f + … + P11 f¹¹)
-    let lo = (P[0] + P[1] * f) + (P[2] + P[3] * f) * f2;
-    let mid = (P[4] + P[5] * f) + (P[6] + P[7] * f) * f2;
-    let hi = (P[8] + P[9] * f) + (P[10] + P[11] * f) * f2;
-    let z = 1.0 + (f + f2 * (lo + mid * f4 + hi * f8));
-    // 2^r from the exponent bits: the low bits of `rounded` hold r (two's complement).
-    let pow2 = f64::from_bits((rounded.to_bits().wrapping_add(1023)) << 52);
-    let v = z * pow2;
-    if r < -1022.0 {
-        0.0
-    } else if r > 1023.0 {
-        f64::INFINITY
-    } else {
-        v
-    }
+fn estrin(p: &[f64; 6], z: F4, z2: F4) -> F4 {
+    let c = |k: usize| F4::splat(p[k]);
+    (c(0) + c(1) * z) + (c(2) + c(3) * z) * z2 + (c(4) + c(5) * z) * (z2 * z2)
 }
 
 /// An instruction set the inner loops can run in.

@@ -53,14 +53,29 @@ fn blend(a: f64, b: f64, t: f64) -> f64 {
 /// exactly. NaN when there are no rows.
 #[must_use]
 pub fn held<R>(rows: &[R], x: f64, at: impl Fn(&R) -> f64, val: impl Fn(&R) -> f64) -> f64 {
+    let [v] = held_each(rows, x, at, |r| [val(r)]);
+    v
+}
+
+/// [`held`] for `N` values per row at once (one search of the rows for all of them).
+#[must_use]
+pub fn held_each<R, const N: usize>(
+    rows: &[R],
+    x: f64,
+    at: impl Fn(&R) -> f64,
+    vals: impl Fn(&R) -> [f64; N],
+) -> [f64; N] {
     let (Some(first), Some(last)) = (rows.first(), rows.last()) else {
-        return f64::NAN;
+        return [f64::NAN; N];
     };
     match locate(rows, x, &at) {
-        Spot::Before => val(first),
-        Spot::After => val(last),
-        Spot::At(i) => val(&rows[i]),
-        Spot::Between { lo, t } => blend(val(&rows[lo]), val(&rows[lo + 1]), t),
+        Spot::Before => vals(first),
+        Spot::After => vals(last),
+        Spot::At(i) => vals(&rows[i]),
+        Spot::Between { lo, t } => {
+            let (a, b) = (vals(&rows[lo]), vals(&rows[lo + 1]));
+            std::array::from_fn(|i| blend(a[i], b[i], t))
+        }
     }
 }
 
