@@ -313,18 +313,40 @@ pub(super) fn all_materials(d: &ResolvedDesign) -> Vec<&Material> {
         .collect()
 }
 
-/// Indices of `mats` at each wavelength, row-major (wavelength, material).
+/// Indices of `mats` at each wavelength, row-major (wavelength, material). Each material is
+/// evaluated over a block of wavelengths at once; a failure is reported for the first
+/// wavelength, and at it the first material, without a usable index.
 pub(super) fn index_table(
     mats: &[&Material],
     wavelengths_nm: &[f64],
 ) -> Result<Vec<Complex64>, SweepError> {
-    let mut out = Vec::with_capacity(mats.len() * wavelengths_nm.len());
-    for &w in wavelengths_nm {
-        if !(w.is_finite() && w > 0.0) {
-            return Err(SweepError::BadWavelength { wavelength_nm: w });
+    /// Wavelengths per block.
+    const BLOCK: usize = 256;
+    if let Some(&w) = wavelengths_nm
+        .iter()
+        .find(|w| !(w.is_finite() && **w > 0.0))
+    {
+        return Err(SweepError::BadWavelength { wavelength_nm: w });
+    }
+    let width = mats.len();
+    let mut out = vec![Complex64::ZERO; wavelengths_nm.len() * width];
+    let mut column = [Complex64::ZERO; BLOCK];
+    for (block, wl) in wavelengths_nm.chunks(BLOCK).enumerate() {
+        let column = &mut column[..wl.len()];
+        // The first failure in row-major order: the lowest row, and at it the first material.
+        let mut first_bad: Option<(usize, MaterialError)> = None;
+        for (m, mat) in mats.iter().enumerate() {
+            if let Err((row, e)) = mat.indices_at(wl, column)
+                && first_bad.as_ref().is_none_or(|b| row < b.0)
+            {
+                first_bad = Some((row, e));
+            }
+            for (r, n) in column.iter().enumerate() {
+                out[(block * BLOCK + r) * width + m] = *n;
+            }
         }
-        for m in mats {
-            out.push(m.index_at(w)?);
+        if let Some((_, e)) = first_bad {
+            return Err(e.into());
         }
     }
     Ok(out)

@@ -141,7 +141,27 @@ impl Material {
     /// [`RangeWarning`]. An index outside [`MIN_N`] ≤ n ≤ [`MAX_N`], 0 ≤ k ≤ [`MAX_K`] (or not a
     /// number) is an error.
     pub fn index_at(&self, wavelength_nm: f64) -> Result<Complex64, MaterialError> {
-        let n = self.model.index_at(wavelength_nm);
+        self.checked(self.model.index_at(wavelength_nm), wavelength_nm)
+    }
+
+    /// [`Material::index_at`] at each of `wavelengths_nm`, into `out` (same length).
+    ///
+    /// # Errors
+    /// The position of the first wavelength without a usable index, and the error there.
+    pub fn indices_at(
+        &self,
+        wavelengths_nm: &[f64],
+        out: &mut [Complex64],
+    ) -> Result<(), (usize, MaterialError)> {
+        self.model.indices_at(wavelengths_nm, out);
+        for (i, (&n, &w)) in out.iter().zip(wavelengths_nm).enumerate() {
+            self.checked(n, w).map_err(|e| (i, e))?;
+        }
+        Ok(())
+    }
+
+    /// `n` if it is a usable index at `wavelength_nm`, else the error that says why not.
+    fn checked(&self, n: Complex64, wavelength_nm: f64) -> Result<Complex64, MaterialError> {
         if (MIN_N..=MAX_N).contains(&n.re) && (0.0..=MAX_K).contains(&n.im) {
             Ok(n)
         } else {

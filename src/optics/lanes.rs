@@ -15,7 +15,7 @@
 use num_complex::Complex64;
 
 use super::Response;
-use super::simd::{self, F4, Level};
+use super::simd::{self, F4, Fused, Level, Mad, Plain};
 use super::tmm::{Amplitudes, BIG, Coherent, RENORM_EVERY, SMALL, Tilted, finish, renorm_factor};
 
 /// Four complex numbers, real and imaginary parts in separate lanes.
@@ -42,6 +42,26 @@ impl Cx4 {
         Self {
             re: self.re * o.re - self.im * o.im,
             im: self.re * o.im + self.im * o.re,
+        }
+    }
+
+    /// self·b − c·d, products formed through `M`.
+    #[inline(always)]
+    pub(crate) fn mul_sub<M: Mad>(self, b: Self, c: Self, d: Self) -> Self {
+        let a = self;
+        let re = M::mad(-a.im, b.im, a.re * b.re);
+        let re = M::mad(c.im, d.im, M::mad(-c.re, d.re, re));
+        let im = M::mad(a.im, b.re, a.re * b.im);
+        let im = M::mad(-c.im, d.re, M::mad(-c.re, d.im, im));
+        Self { re, im }
+    }
+
+    /// self·o, products formed through `M`.
+    #[inline(always)]
+    pub(crate) fn mul_m<M: Mad>(self, o: Self) -> Self {
+        Self {
+            re: M::mad(-self.im, o.im, self.re * o.re),
+            im: M::mad(self.im, o.re, self.re * o.im),
         }
     }
 
@@ -269,14 +289,23 @@ impl pulp::WithSimd for Front4<'_> {
         let snell = snell_f4.0;
         self.packed.clear();
         let materials = self.materials;
-        self.packed.extend(
-            (0..materials[0].len())
-                .map(|m| Tilted4::new(std::array::from_fn(|i| materials[i][m]), snell)),
-        );
+        // A plain loop, not an iterator adapter: so the tilting is inlined here and compiled
+        // for this instruction set.
+        for m in 0..materials[0].len() {
+            self.packed.push(Tilted4::new(
+                std::array::from_fn(|i| materials[i][m]),
+                snell,
+            ));
+        }
         let sub = Tilted4::new(self.substrate, snell);
         let k0 = F4(self.wavelength_nm.map(|w| std::f64::consts::TAU / w));
         let layers = self.layers.iter().map(|&(m, d)| (&self.packed[m], d));
-        let ([(bs, cs), (bp, cp)], log_s, log_p) = product4(layers, [sub.eta_s, sub.eta_p], k0);
+        let eta_sub = [sub.eta_s, sub.eta_p];
+        let ([(bs, cs), (bp, cp)], log_s, log_p) = if S::IS_SCALAR {
+            product4::<Plain>(layers, eta_sub, k0)
+        } else {
+            product4::<Fused>(layers, eta_sub, k0)
+        };
         // The incident medium is transparent and the angle below 90°: q₀ = n₀ cos θ₀ is real.
         let q0 = (n0 * n0 - snell_f4 * snell_f4).map(f64::sqrt);
         let eta0_p = (n0 * n0).zip(q0, |a, b| a / b);
@@ -411,19 +440,23 @@ impl<'a, I: Iterator<Item = (&'a Tilted4, f64)>> pulp::WithSimd for Product<I> {
 
     #[inline(always)]
     fn with_simd<S: pulp::Simd>(self, _simd: S) -> Self::Output {
-        product4(self.layers, self.eta_sub, self.k0)
+        if S::IS_SCALAR {
+            product4::<Plain>(self.layers, self.eta_sub, self.k0)
+        } else {
+            product4::<Fused>(self.layers, self.eta_sub, self.k0)
+        }
     }
 }
 
 /// [B; C] for s and p after all `layers`, starting from [1; η_sub], and the natural logarithm
 /// of the scale taken out of each (s, p). Always inlined, so it is compiled for the caller's
-/// instruction set.
+/// instruction set; `M` is [`Fused`] only where that set has fused multiply–adds.
 #[inline(always)]
 #[allow(
     clippy::type_complexity,
     reason = "two polarisations of [B; C] and their scales, unpacked by the one caller"
 )]
-fn product4<'a>(
+fn product4<'a, M: Mad>(
     layers: impl Iterator<Item = (&'a Tilted4, f64)>,
     eta_sub: [Cx4; 2],
     k0: F4,
@@ -454,12 +487,12 @@ fn product4<'a>(
             let rotate = |b: Cx4, c: Cx4, eta: F4, inv_eta: F4| {
                 let (u, v) = (sin_a * inv_eta, sin_a * eta);
                 let b2 = Cx4 {
-                    re: cos_a * b.re + u * c.im,
-                    im: cos_a * b.im - u * c.re,
+                    re: M::mad(u, c.im, cos_a * b.re),
+                    im: M::mad(-u, c.re, cos_a * b.im),
                 };
                 let c2 = Cx4 {
-                    re: cos_a * c.re + v * b.im,
-                    im: cos_a * c.im - v * b.re,
+                    re: M::mad(v, b.im, cos_a * c.re),
+                    im: M::mad(-v, b.re, cos_a * c.im),
                 };
                 (b2, c2)
             };
@@ -482,10 +515,16 @@ fn product4<'a>(
             re: -(cos_a * sh),
             im: sin_a * ch,
         };
-        let (xs, ys) = (i_sin_d.mul(m.inv_eta_s), i_sin_d.mul(m.eta_s));
-        (bs, cs) = (cos_d.mul(bs).sub(xs.mul(cs)), cos_d.mul(cs).sub(ys.mul(bs)));
-        let (xp, yp) = (i_sin_d.mul(m.inv_eta_p), i_sin_d.mul(m.eta_p));
-        (bp, cp) = (cos_d.mul(bp).sub(xp.mul(cp)), cos_d.mul(cp).sub(yp.mul(bp)));
+        let (xs, ys) = (i_sin_d.mul_m::<M>(m.inv_eta_s), i_sin_d.mul_m::<M>(m.eta_s));
+        (bs, cs) = (
+            cos_d.mul_sub::<M>(bs, xs, cs),
+            cos_d.mul_sub::<M>(cs, ys, bs),
+        );
+        let (xp, yp) = (i_sin_d.mul_m::<M>(m.inv_eta_p), i_sin_d.mul_m::<M>(m.eta_p));
+        (bp, cp) = (
+            cos_d.mul_sub::<M>(bp, xp, cp),
+            cos_d.mul_sub::<M>(cp, yp, bp),
+        );
     }
     renorm4(&mut bs, &mut cs, &mut norm_s);
     renorm4(&mut bp, &mut cp, &mut norm_p);
