@@ -291,6 +291,10 @@ impl pulp::WithSimd for Front4<'_> {
         let materials = self.materials;
         // A plain loop, not an iterator adapter: so the tilting is inlined here and compiled
         // for this instruction set.
+        #[allow(
+            clippy::needless_range_loop,
+            reason = "m indexes all four lanes' material lists"
+        )]
         for m in 0..materials[0].len() {
             self.packed.push(Tilted4::new(
                 std::array::from_fn(|i| materials[i][m]),
