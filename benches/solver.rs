@@ -2,8 +2,8 @@
 //! and absorbing materials, on one thread and on all cores. Throughput is reported in
 //! layer·wavelength elements (s and p together), so ns per element = 1 / throughput. Also the
 //! Monte Carlo tolerances and layer sensitivities of a 30-layer design. The optimiser's case,
-//! small stacks over 301 wavelengths with indices evaluated beforehand, with and without the
-//! derivatives for every thickness (`small/…`).
+//! small stacks over 301 wavelengths with indices evaluated and media tilted beforehand, with
+//! and without the derivatives for every thickness (`small/…`).
 
 use std::hint::black_box;
 use std::ops::ControlFlow;
@@ -17,7 +17,7 @@ use stackwise::analysis::{angle_scan, angles_deg, spectrum, wavelengths_nm};
 use stackwise::design::{Pol, Quantity, ResolvedDesign};
 use stackwise::material::{Material, Model};
 use stackwise::optics::{
-    Gradient, GradientScratch, Scratch4, Side, StackAt, solve_gradient, solve4,
+    Gradient, GradientScratch4, Media4, Side, StackAt, solve_gradient4, solve4_with,
 };
 
 /// A design of `layers` alternating layers: a dispersive, weakly absorbing high index (a table
@@ -162,8 +162,9 @@ fn production(c: &mut Criterion) {
 
 /// The optimiser's inner loop at the engine: {10, 30} layers × 301 wavelengths at 0° and 45°,
 /// indices evaluated beforehand (a dispersive, absorbing high index and a dispersive low one
-/// on glass), R and T alone (`rt`, four wavelengths per pass) and with the derivatives for
-/// every thickness (`derivatives`, one wavelength per call).
+/// on glass), the media tilted once as the optimiser does, four wavelengths per pass: R and T
+/// alone (`rt`, `solve4_with`) and with the derivatives for every thickness (`derivatives`,
+/// `solve_gradient4`).
 fn small(c: &mut Criterion) {
     let wl: Vec<f64> = (0..301).map(|i| 400.0 + 2.0 * f64::from(i)).collect();
     // Demo dispersion (Cauchy-like, invented for the benchmark).
@@ -198,32 +199,40 @@ fn small(c: &mut Criterion) {
         g.measurement_time(Duration::from_secs(1));
         for aoi_deg in [0.0_f64, 45.0] {
             let aoi = aoi_deg.to_radians();
-            let mut scratch = Scratch4::default();
+            // As the optimiser runs: the media tilted once per optimisation, then every pass
+            // for new thicknesses reuses them.
+            let quads: Vec<[usize; 4]> = (0..wl.len())
+                .step_by(4)
+                .map(|first| std::array::from_fn(|k| (first + k).min(wl.len() - 1)))
+                .collect();
+            let media: Vec<Media4> = quads
+                .iter()
+                .map(|q| Media4::new(q.map(|i| &stacks[i]), [aoi; 4], Side::Front))
+                .collect();
             g.bench_function(format!("aoi={aoi_deg}/rt"), |b| {
                 b.iter(|| {
                     let mut sum = 0.0;
-                    for first in (0..wl.len()).step_by(4) {
-                        let lanes: [usize; 4] =
-                            std::array::from_fn(|k| (first + k).min(wl.len() - 1));
-                        let four = solve4(
-                            lanes.map(|i| &stacks[i]),
-                            lanes.map(|i| wl[i]),
-                            [aoi; 4],
-                            Side::Front,
-                            &mut scratch,
-                        );
+                    for (q, m) in quads.iter().zip(&media) {
+                        let four = solve4_with(m, q.map(|i| &stacks[i]), q.map(|i| wl[i]));
                         sum += four.iter().map(|r| r.r() + r.t()).sum::<f64>();
                     }
                     black_box(sum)
                 });
             });
-            let (mut grad, mut scratch) = (Gradient::default(), GradientScratch::default());
+            let mut grads: [Gradient; 4] = Default::default();
+            let mut scratch = GradientScratch4::default();
             g.bench_function(format!("aoi={aoi_deg}/derivatives"), |b| {
                 b.iter(|| {
                     let mut sum = 0.0;
-                    for (stack, &w) in stacks.iter().zip(&wl) {
-                        solve_gradient(black_box(stack), w, aoi, &mut scratch, &mut grad);
-                        sum += grad.d_r_s[0] + grad.d_t_p[0];
+                    for (q, m) in quads.iter().zip(&media) {
+                        solve_gradient4(
+                            m,
+                            q.map(|i| &stacks[i]),
+                            q.map(|i| wl[i]),
+                            &mut scratch,
+                            &mut grads,
+                        );
+                        sum += grads.iter().map(|g| g.d_r_s[0] + g.d_t_p[0]).sum::<f64>();
                     }
                     black_box(sum)
                 });

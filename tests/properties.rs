@@ -8,7 +8,9 @@ use approx::assert_relative_eq;
 use common::{re, stack, stack_side};
 use num_complex::Complex64;
 use proptest::prelude::*;
-use stackwise::optics::{Response, Scratch4, Side, StackAt, Tilted, solve, solve4};
+use stackwise::optics::{
+    Media4, Response, Scratch4, Side, StackAt, Tilted, solve, solve4, solve4_with,
+};
 
 /// Recursive reflection/transmission (Rouard's method), written independently of the matrix
 /// code: starting at the substrate, each layer j between the medium above (a) and its own
@@ -171,16 +173,12 @@ proptest! {
             })
             .collect();
         let side = if back { Side::Back } else { Side::Front };
-        let four = solve4(
-            [&stacks[0], &stacks[1], &stacks[2], &stacks[3]],
-            wl,
-            aoi,
-            side,
-            &mut Scratch4::default(),
-        );
-        for k in 0..4 {
+        let refs = [&stacks[0], &stacks[1], &stacks[2], &stacks[3]];
+        let four = solve4(refs, wl, aoi, side, &mut Scratch4::default());
+        // The optimiser's entry: the media tilted beforehand.
+        let with = solve4_with(&Media4::new(refs, aoi, side), refs, wl);
+        for (k, f) in (0..4).flat_map(|k| [(k, &four[k]), (k, &with[k])]) {
             let one = solve(&stacks[k], wl[k], aoi[k], side, &mut Vec::new());
-            let f = &four[k];
             for (a, b) in [(one.r_s, f.r_s), (one.r_p, f.r_p), (one.t_s, f.t_s), (one.t_p, f.t_p), (one.a_s, f.a_s), (one.a_p, f.a_p)] {
                 prop_assert!((a - b).abs() < 1e-12, "lane {k}: {one:?} vs {f:?}");
             }

@@ -70,14 +70,15 @@ pub struct Gradient {
 }
 
 impl Gradient {
-    fn resize(&mut self, n: usize) {
+    /// Sizes every derivative list to `n` layers (the callers then write every entry, so
+    /// old values are not cleared).
+    pub(super) fn resize(&mut self, n: usize) {
         for v in [
             &mut self.d_r_s,
             &mut self.d_r_p,
             &mut self.d_t_s,
             &mut self.d_t_p,
         ] {
-            v.clear();
             v.resize(n, 0.0);
         }
         for v in [
@@ -86,7 +87,6 @@ impl Gradient {
             &mut self.d_amp_t_s,
             &mut self.d_amp_t_p,
         ] {
-            v.clear();
             v.resize(n, Complex64::default());
         }
     }

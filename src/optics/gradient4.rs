@@ -14,8 +14,8 @@
 use num_complex::Complex64;
 
 use super::gradient::{Gradient, Pass, finish_gradient};
-use super::lanes::{Cx4, Tilted4, coherent4, inv};
-use super::simd::{self, F4, Level};
+use super::lanes::{Cx4, Tilted4, coherent4, inv, rotate};
+use super::simd::{self, F4, Fused, Level, Mad, Plain};
 use super::tmm::{BIG, Coherent, RENORM_EVERY, SMALL, Tilted, finish};
 use super::{Media4, StackAt};
 
@@ -27,17 +27,10 @@ pub struct GradientScratch4 {
     /// Per layer in pass order: [B; C] below the layer (s, p) and the natural logarithm of
     /// the scale taken out of each.
     below: Vec<([[Cx4; 2]; 2], [F4; 2])>,
+    /// Per layer (deposition order): what the backward pass found, in lanes.
+    terms: Vec<Terms>,
     front: [Pass; 4],
     inside: [Pass; 4],
-}
-
-/// i·z.
-#[inline(always)]
-fn times_i(z: Cx4) -> Cx4 {
-    Cx4 {
-        re: -z.im,
-        im: z.re,
-    }
 }
 
 #[inline(always)]
@@ -99,13 +92,17 @@ fn pass4(
     k0: F4,
     trig: &mut Vec<[Cx4; 3]>,
     below: &mut Vec<([[Cx4; 2]; 2], [F4; 2])>,
+    terms: &mut Vec<Terms>,
     out: &mut [Pass; 4],
+    mut direct: Option<&mut [Gradient; 4]>,
 ) {
     let n = layers.len();
-    for lane in out.iter_mut() {
-        for v in lane.dr.iter_mut().chain(lane.dd_rel.iter_mut()) {
-            v.clear();
-            v.resize(n, Complex64::default());
+    // Every entry is written by the backward pass, so the buffers are only sized, not cleared.
+    if direct.is_none() {
+        for lane in out.iter_mut() {
+            for v in lane.dr.iter_mut().chain(lane.dd_rel.iter_mut()) {
+                v.resize(n, Complex64::default());
+            }
         }
     }
     let eta_sub = [
@@ -150,6 +147,27 @@ fn pass4(
             ),
         };
     }
+    let (sink, results) = match direct.take() {
+        Some(grads) => {
+            let results = [0, 1].map(|pol| {
+                let amp = |i: usize| {
+                    let c = &out[i].result;
+                    if pol == 0 { c.s } else { c.p }
+                };
+                Res4 {
+                    r: Cx4::gather(std::array::from_fn(|i| amp(i).r)),
+                    t: Cx4::gather(std::array::from_fn(|i| amp(i).t)),
+                    transmittance: F4(std::array::from_fn(|i| amp(i).transmittance)),
+                }
+            });
+            for (g, lane) in grads.iter_mut().zip(out.iter()) {
+                g.resize(n);
+                g.response = lane.result.response();
+            }
+            (Sink::Direct(grads), Some(results))
+        }
+        None => (Sink::Pass(out), None),
+    };
     simd::run_at(
         level,
         Backward {
@@ -161,9 +179,89 @@ fn pass4(
             eta0,
             v,
             norm,
-            out,
+            results,
+            terms,
         },
     );
+    sink.spread(terms);
+}
+
+/// One polarisation's results in four lanes: what the derivatives of R, T and t need.
+#[derive(Clone, Copy)]
+struct Res4 {
+    r: Cx4,
+    t: Cx4,
+    transmittance: F4,
+}
+
+/// Per polarisation (s, p), what the backward pass finds for one layer, in lanes: with the
+/// results at hand (a semi-infinite substrate) [dr, dt, dR + i·dT], with dR = 2 Re(r* dr),
+/// dT = −2 T Re(dD/D) and dt = −t dD/D; otherwise [dr, dD/D, unused] for the thick
+/// substrate's incoherent chain.
+type Terms = [[Cx4; 3]; 2];
+
+/// Where each layer's derivatives go.
+enum Sink<'a> {
+    /// dr and dD/D per point.
+    Pass(&'a mut [Pass; 4]),
+    /// The finished derivatives of R, T and the amplitudes per point.
+    Direct(&'a mut [Gradient; 4]),
+}
+
+impl Sink<'_> {
+    /// Spreads the layers' `terms` (in lanes) over the four points.
+    fn spread(self, terms: &[Terms]) {
+        match self {
+            Self::Pass(out) => {
+                for (i, lane) in out.iter_mut().enumerate() {
+                    for pol in 0..2 {
+                        let (dr, dd) = (&mut lane.dr[pol], &mut lane.dd_rel[pol]);
+                        for ((t, dr), dd) in terms.iter().zip(dr.iter_mut()).zip(dd.iter_mut()) {
+                            let [r, d, _] = &t[pol];
+                            *dr = Complex64::new(r.re.0[i], r.im.0[i]);
+                            *dd = Complex64::new(d.re.0[i], d.im.0[i]);
+                        }
+                    }
+                }
+            }
+            Self::Direct(grads) => {
+                for (i, g) in grads.iter_mut().enumerate() {
+                    let Gradient {
+                        d_r_s,
+                        d_r_p,
+                        d_t_s,
+                        d_t_p,
+                        d_amp_r_s,
+                        d_amp_r_p,
+                        d_amp_t_s,
+                        d_amp_t_p,
+                        ..
+                    } = g;
+                    let columns = [
+                        (d_r_s, d_t_s, d_amp_r_s, d_amp_t_s),
+                        (d_r_p, d_t_p, d_amp_r_p, d_amp_t_p),
+                    ];
+                    for (pol, (d_r, d_t, d_amp_r, d_amp_t)) in columns.into_iter().enumerate() {
+                        let rows = terms
+                            .iter()
+                            .zip(d_r.iter_mut())
+                            .zip(d_t.iter_mut())
+                            .zip(d_amp_r.iter_mut())
+                            .zip(d_amp_t.iter_mut());
+                        for ((((term, d_r), d_t), d_amp_r), d_amp_t) in rows {
+                            // Through references: copying the lanes out by value first would
+                            // cost more than the copy itself.
+                            let [dr, dt, rt] = &term[pol];
+                            *d_r = rt.re.0[i];
+                            *d_t = rt.im.0[i];
+                            *d_amp_r = Complex64::new(dr.re.0[i], dr.im.0[i]);
+                            *d_amp_t = Complex64::new(dt.re.0[i], dt.im.0[i]);
+                        }
+                    }
+                }
+            }
+        }
+    }
 }
 
 /// [`forward`] as an operation for [`simd::run_at`].
@@ -182,15 +280,22 @@ impl pulp::WithSimd for Forward<'_> {
 
     #[inline(always)]
     fn with_simd<S: pulp::Simd>(self, _simd: S) -> Self::Output {
-        forward(
-            self.mats,
-            self.layers,
-            self.reversed,
-            self.k0,
-            self.eta_sub,
-            self.trig,
-            self.below,
-        )
+        // Direct calls (not through a function pointer), so each is inlined here and
+        // compiled for this instruction set.
+        let Self {
+            mats,
+            layers,
+            reversed,
+            k0,
+            eta_sub,
+            trig,
+            below,
+        } = self;
+        if S::IS_SCALAR {
+            forward::<Plain>(mats, layers, reversed, k0, eta_sub, trig, below)
+        } else {
+            forward::<Fused>(mats, layers, reversed, k0, eta_sub, trig, below)
+        }
     }
 }
 
@@ -204,7 +309,8 @@ struct Backward<'a> {
     eta0: [Cx4; 2],
     v: [[Cx4; 2]; 2],
     norm: [F4; 2],
-    out: &'a mut [Pass; 4],
+    results: Option<[Res4; 2]>,
+    terms: &'a mut Vec<Terms>,
 }
 
 impl pulp::WithSimd for Backward<'_> {
@@ -212,17 +318,24 @@ impl pulp::WithSimd for Backward<'_> {
 
     #[inline(always)]
     fn with_simd<S: pulp::Simd>(self, _simd: S) {
-        backward(
-            self.mats,
-            self.layers,
-            self.reversed,
-            self.trig,
-            self.below,
-            self.eta0,
-            self.v,
-            self.norm,
-            self.out,
-        );
+        let Self {
+            mats,
+            layers,
+            reversed,
+            trig,
+            below,
+            eta0,
+            v,
+            norm,
+            results,
+            terms,
+        } = self;
+        let ends = (eta0, v, norm, results);
+        if S::IS_SCALAR {
+            backward::<Plain>(mats, layers, reversed, trig, below, ends, terms);
+        } else {
+            backward::<Fused>(mats, layers, reversed, trig, below, ends, terms);
+        }
     }
 }
 
@@ -231,7 +344,7 @@ impl pulp::WithSimd for Backward<'_> {
 /// log of the renormalisation of each polarisation.
 #[inline(always)]
 #[allow(clippy::type_complexity, reason = "unpacked by the one caller")]
-fn forward(
+fn forward<M: Mad>(
     mats: &[Tilted4],
     layers: &[(usize, f64)],
     reversed: bool,
@@ -241,8 +354,13 @@ fn forward(
     below: &mut Vec<([[Cx4; 2]; 2], [F4; 2])>,
 ) -> ([[Cx4; 2]; 2], F4, [F4; 2]) {
     let n = layers.len();
-    trig.clear();
-    below.clear();
+    // Sized once and written in place (a push of these large values goes through memcpy).
+    let zero = Cx4 {
+        re: F4::ZERO,
+        im: F4::ZERO,
+    };
+    trig.resize(n, [zero; 3]);
+    below.resize(n, ([[zero; 2]; 2], [F4::ZERO; 2]));
     let one = Cx4 {
         re: F4::ONE,
         im: F4::ZERO,
@@ -288,17 +406,22 @@ fn forward(
                 },
             )
         };
-        below.push((v, norm));
-        trig.push([cd, is, scale(m.q, k0)]);
+        below[p] = (v, norm);
+        trig[p] = [cd, is, scale(m.q, k0)];
         for (pol, (eta, inv_eta)) in [(m.eta_s, m.inv_eta_s), (m.eta_p, m.inv_eta_p)]
             .into_iter()
             .enumerate()
         {
             let [b, c] = v[pol];
-            v[pol] = [
-                cd.mul(b).sub(is.mul(inv_eta.mul(c))),
-                cd.mul(c).sub(is.mul(eta.mul(b))),
-            ];
+            v[pol] = if m.real {
+                // cos δ and the admittances real, i sin δ imaginary: real products only.
+                rotate::<M>([b, c], cos_a, sin_a * inv_eta.re, sin_a * eta.re)
+            } else {
+                [
+                    cd.mul_sub::<M>(b, is, inv_eta.mul_m::<M>(c)),
+                    cd.mul_sub::<M>(c, is, eta.mul_m::<M>(b)),
+                ]
+            };
         }
     }
     renorm2(&mut v[0], &mut norm[0]);
@@ -306,32 +429,42 @@ fn forward(
     (v, log_scale, norm)
 }
 
+/// What the backward pass starts from: the incident admittances (s, p), the final [B; C]
+/// (s, p), the log of the scale taken out of each, and (a semi-infinite substrate) the results.
+type BackwardEnds = ([Cx4; 2], [[Cx4; 2]; 2], [F4; 2], Option<[Res4; 2]>);
+
 /// The backward pass: the adjoint rows [C, −B] (for dr) and [η₀, 1] (for dD) carried down,
 /// contracted with ∂M/∂d · v below each layer.
 #[inline(always)]
 #[allow(clippy::too_many_arguments)]
-fn backward(
+fn backward<M: Mad>(
     mats: &[Tilted4],
     layers: &[(usize, f64)],
     reversed: bool,
     trig: &[[Cx4; 3]],
     below: &[([[Cx4; 2]; 2], [F4; 2])],
-    eta0: [Cx4; 2],
-    v: [[Cx4; 2]; 2],
-    norm: [F4; 2],
-    out: &mut [Pass; 4],
+    (eta0, v, norm, results): BackwardEnds,
+    terms: &mut Vec<Terms>,
 ) {
     let n = layers.len();
+    let zero = Cx4 {
+        re: F4::ZERO,
+        im: F4::ZERO,
+    };
+    terms.resize(n, [[zero; 3]; 2]);
     let one = Cx4 {
         re: F4::ONE,
         im: F4::ZERO,
     };
     for pol in 0..2 {
         let [b, c] = v[pol];
-        let den = eta0[pol].mul(b);
+        let den = eta0[pol].mul_m::<M>(b);
         let den = add(den, c);
         let inv_den = inv(den);
-        let dr_factor = scale(eta0[pol].mul(inv_den.mul(inv_den)), F4::splat(2.0));
+        let dr_factor = scale(
+            eta0[pol].mul_m::<M>(inv_den.mul_m::<M>(inv_den)),
+            F4::splat(2.0),
+        );
         // Row vectors and the logs of their scales: the true rows are w·e^f.
         let mut w1 = [
             c,
@@ -359,28 +492,62 @@ fn backward(
                 (m.eta_p, m.inv_eta_p)
             };
             let ([bb, cb], below_norm) = (below[p].0[pol], below[p].1[pol]);
-            // (∂M/∂d)·v = k₀q · i·[i sin δ · B − cos δ · C/η; i sin δ · C − η cos δ · B]
-            let x0 = kq.mul(times_i(is.mul(bb).sub(cd.mul(inv_eta.mul(cb)))));
-            let x1 = kq.mul(times_i(is.mul(cb).sub(eta.mul(cd.mul(bb)))));
-            let mut dr = dr_factor.mul(add(w1[0].mul(x0), w1[1].mul(x1)));
-            let mut dd = add(w2[0].mul(x0), w2[1].mul(x1)).mul(inv_den);
+            // w ← w·M first: with ∂M/∂d = k₀q·M·J, J = [[0, −i/η], [−iη, 0]], the layer's
+            // term w·(∂M/∂d)·v is k₀q·(w·M)·(J·v), and J·v = −i·[C/η; η·B].
+            if m.real {
+                let (c, s) = (cd.re, is.im);
+                // [w0 cos δ − i η sin δ w1, w1 cos δ − i sin δ w0/η]
+                let (u, w) = (s * eta.re, s * inv_eta.re);
+                w1 = rotate::<M>(w1, c, u, w);
+                w2 = rotate::<M>(w2, c, u, w);
+            } else {
+                let (x, y) = (eta.mul_m::<M>(is), is.mul_m::<M>(inv_eta));
+                // No closure here: everything in the kernel must be inlined into it.
+                w1 = [
+                    w1[0].mul_sub::<M>(cd, w1[1], x),
+                    w1[1].mul_sub::<M>(cd, w1[0], y),
+                ];
+                w2 = [
+                    w2[0].mul_sub::<M>(cd, w2[1], x),
+                    w2[1].mul_sub::<M>(cd, w2[0], y),
+                ];
+            }
+            let (j0, j1) = if m.real {
+                (scale(cb, inv_eta.re), scale(bb, eta.re))
+            } else {
+                (inv_eta.mul_m::<M>(cb), eta.mul_m::<M>(bb))
+            };
+            let (s1, s2) = (
+                w1[0].mul_plus::<M>(j0, w1[1], j1),
+                w2[0].mul_plus::<M>(j0, w2[1], j1),
+            );
+            // −i·k₀q
+            let minus_i_kq = Cx4 {
+                re: kq.im,
+                im: -kq.re,
+            };
+            let mut dr = dr_factor.mul_m::<M>(minus_i_kq).mul_m::<M>(s1);
+            let mut dd = inv_den.mul_m::<M>(minus_i_kq).mul_m::<M>(s2);
             if scaled || below_norm.0.iter().any(|&x| x != 0.0) {
                 dr = scale(dr, (f1 + below_norm - norm[pol] - norm[pol]).exp());
                 dd = scale(dd, (f2 + below_norm - norm[pol]).exp());
             }
-            for (i, lane) in out.iter_mut().enumerate() {
-                lane.dr[pol][k] = dr.lane(i);
-                lane.dd_rel[pol][k] = dd.lane(i);
-            }
-            // w ← w·M
-            let step = |w: [Cx4; 2]| {
-                [
-                    w[0].mul(cd).sub(w[1].mul(eta.mul(is))),
-                    w[1].mul(cd).sub(w[0].mul(is.mul(inv_eta))),
-                ]
+            // Kept in lanes here and spread over the points afterwards: writing single lanes
+            // from inside the loop would have the compiler shuffle every product.
+            terms[k][pol] = match &results {
+                None => [dr, dd, zero],
+                Some(res) => {
+                    let res = &res[pol];
+                    let d_r = F4::splat(2.0) * M::mad(res.r.re, dr.re, res.r.im * dr.im);
+                    let d_t = F4::splat(-2.0) * res.transmittance * dd.re;
+                    let t_dd = res.t.mul_m::<M>(dd);
+                    let dt = Cx4 {
+                        re: -t_dd.re,
+                        im: -t_dd.im,
+                    };
+                    [dr, dt, Cx4 { re: d_r, im: d_t }]
+                }
             };
-            w1 = step(w1);
-            w2 = step(w2);
         }
     }
 }
@@ -422,9 +589,12 @@ pub(crate) fn solve_gradient4_at(
     let GradientScratch4 {
         trig,
         below,
+        terms,
         front,
         inside,
     } = scratch;
+    let semi_infinite = stacks[0].substrate_mm.is_none();
+    // On a semi-infinite substrate the front pass gives the derivatives themselves.
     pass4(
         level,
         ends(|s| &s.front_out),
@@ -434,19 +604,11 @@ pub(crate) fn solve_gradient4_at(
         k0,
         trig,
         below,
+        terms,
         front,
+        semi_infinite.then_some(&mut *out),
     );
-    if stacks[0].substrate_mm.is_none() {
-        for i in 0..4 {
-            finish_gradient(
-                stacks[i],
-                &setups[i],
-                wavelength_nm[i],
-                &front[i],
-                None,
-                &mut out[i],
-            );
-        }
+    if semi_infinite {
         return;
     }
     pass4(
@@ -458,7 +620,9 @@ pub(crate) fn solve_gradient4_at(
         k0,
         trig,
         below,
+        terms,
         inside,
+        None,
     );
     // The back face (its coating or the bare surface) seen from inside the substrate.
     let (ci, cs) = ends(|s| &s.back_in);
@@ -526,8 +690,10 @@ mod tests {
             let substrate_mm = (case % 2 == 1).then(|| rng.range(0.5, 3.0));
             let rows: Vec<[Complex64; 3]> = (0..4)
                 .map(|_| {
-                    std::array::from_fn(|_| {
-                        Complex64::new(rng.range(1.3, 2.6), rng.range(0.0, 0.3))
+                    // The third material is lossless (the real-arithmetic path).
+                    std::array::from_fn(|m| {
+                        let k = rng.range(0.0, 0.3);
+                        Complex64::new(rng.range(1.3, 2.6), if m == 2 { 0.0 } else { k })
                     })
                 })
                 .collect();

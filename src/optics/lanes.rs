@@ -5,7 +5,7 @@
 //! cannot overflow), and both scales are carried as logarithms to the end.
 //!
 //! The loop is compiled once per instruction set ([`super::simd`]) and the best one the
-//! processor has is chosen at run time; every version rounds identically.
+//! processor has is chosen at run time; the versions agree to rounding (see [`simd::Mad`]).
 
 #![allow(
     clippy::inline_always,
@@ -56,20 +56,23 @@ impl Cx4 {
         Self { re, im }
     }
 
+    /// self·b + c·d, products formed through `M`.
+    #[inline(always)]
+    pub(crate) fn mul_plus<M: Mad>(self, b: Self, c: Self, d: Self) -> Self {
+        let a = self;
+        let re = M::mad(-a.im, b.im, a.re * b.re);
+        let re = M::mad(-c.im, d.im, M::mad(c.re, d.re, re));
+        let im = M::mad(a.im, b.re, a.re * b.im);
+        let im = M::mad(c.im, d.re, M::mad(c.re, d.im, im));
+        Self { re, im }
+    }
+
     /// self·o, products formed through `M`.
     #[inline(always)]
     pub(crate) fn mul_m<M: Mad>(self, o: Self) -> Self {
         Self {
             re: M::mad(-self.im, o.im, self.re * o.re),
             im: M::mad(self.im, o.re, self.re * o.im),
-        }
-    }
-
-    #[inline(always)]
-    pub(crate) fn sub(self, o: Self) -> Self {
-        Self {
-            re: self.re - o.re,
-            im: self.im - o.im,
         }
     }
 }
@@ -285,8 +288,7 @@ impl pulp::WithSimd for Front4<'_> {
     #[inline(always)]
     fn with_simd<S: pulp::Simd>(self, _simd: S) -> Self::Output {
         let n0 = F4(self.incident.map(|n| n.re));
-        let snell_f4 = n0 * F4(self.aoi_rad.map(f64::sin));
-        let snell = snell_f4.0;
+        let snell = n0 * F4(self.aoi_rad.map(f64::sin));
         self.packed.clear();
         let materials = self.materials;
         // A plain loop, not an iterator adapter: so the tilting is inlined here and compiled
@@ -298,51 +300,115 @@ impl pulp::WithSimd for Front4<'_> {
         for m in 0..materials[0].len() {
             self.packed.push(Tilted4::new(
                 std::array::from_fn(|i| materials[i][m]),
-                snell,
+                snell.0,
             ));
         }
-        let sub = Tilted4::new(self.substrate, snell);
-        let k0 = F4(self.wavelength_nm.map(|w| std::f64::consts::TAU / w));
+        let ends = FrontEnds4::new(self.incident, self.substrate, snell);
         let layers = self.layers.iter().map(|&(m, d)| (&self.packed[m], d));
-        let eta_sub = [sub.eta_s, sub.eta_p];
-        let ([(bs, cs), (bp, cp)], log_s, log_p) = if S::IS_SCALAR {
-            product4::<Plain>(layers, eta_sub, k0)
-        } else {
-            product4::<Fused>(layers, eta_sub, k0)
-        };
-        // The incident medium is transparent and the angle below 90°: q₀ = n₀ cos θ₀ is real.
-        let q0 = (n0 * n0 - snell_f4 * snell_f4).map(f64::sqrt);
-        let eta0_p = (n0 * n0).zip(q0, |a, b| a / b);
-        // t_p's factor cos θ₀ / cos θ_sub = (q₀ / n₀) · (N_sub / q_sub).
-        let cos0 = q0.zip(n0, |a, b| a / b);
-        let n_sub = Cx4::gather(self.substrate);
-        let ratio = n_sub.mul(sub.inv_eta_s);
-        let t_factor_p = Cx4 {
-            re: ratio.re * cos0,
-            im: ratio.im * cos0,
-        };
-        let one = Cx4 {
-            re: F4::ONE,
-            im: F4::ZERO,
-        };
-        let s = finish4(q0, bs, cs, sub.eta_s, one, log_s);
-        let p = finish4(eta0_p, bp, cp, sub.eta_p, t_factor_p, log_p);
-        std::array::from_fn(|i| {
-            let (s, p) = (s.lane(i), p.lane(i));
-            Response {
-                r_s: s.reflectance,
-                r_p: p.reflectance,
-                t_s: s.transmittance,
-                t_p: p.transmittance,
-                a_s: s.absorptance,
-                a_p: p.absorptance,
-                amp_r_s: s.r,
-                amp_r_p: p.r,
-                amp_t_s: s.t,
-                amp_t_p: p.t,
-            }
-        })
+        front_responses::<S, _>(layers, &ends, self.wavelength_nm)
     }
+}
+
+/// [`Front4`] with the media tilted beforehand (the optimiser's case, see
+/// [`super::Media4`]).
+pub(crate) struct FrontWith<'a> {
+    /// The layer materials, tilted.
+    pub(crate) packed: &'a [Tilted4],
+    /// The incident medium and the substrate, tilted.
+    pub(crate) ends: &'a FrontEnds4,
+    /// The layers, deposition order: (material, nm).
+    pub(crate) layers: &'a [(usize, f64)],
+    /// Vacuum wavelength of each point (nm).
+    pub(crate) wavelength_nm: [f64; 4],
+}
+
+impl pulp::WithSimd for FrontWith<'_> {
+    type Output = [Response; 4];
+
+    #[inline(always)]
+    fn with_simd<S: pulp::Simd>(self, _simd: S) -> Self::Output {
+        let layers = self.layers.iter().map(|&(m, d)| (&self.packed[m], d));
+        front_responses::<S, _>(layers, self.ends, self.wavelength_nm)
+    }
+}
+
+/// The ends of the front problem in four lanes: a transparent incident medium and a
+/// semi-infinite substrate, tilted.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct FrontEnds4 {
+    /// The incident medium's admittances (s, p), real: it is transparent and the angle below
+    /// 90°, so q₀ = n₀ cos θ₀ is real.
+    eta0: [F4; 2],
+    /// The substrate's admittances (s, p).
+    eta_sub: [Cx4; 2],
+    /// t_p's factor cos θ₀ / cos θ_sub = (q₀ / n₀) · (N_sub / q_sub).
+    t_factor_p: Cx4,
+}
+
+impl FrontEnds4 {
+    /// The ends for these indices (the incident medium's real part counts) and Snell
+    /// invariants.
+    #[inline(always)]
+    pub(crate) fn new(incident: [Complex64; 4], substrate: [Complex64; 4], snell: F4) -> Self {
+        let n0 = F4(incident.map(|n| n.re));
+        let sub = Tilted4::new(substrate, snell.0);
+        let q0 = (n0 * n0 - snell * snell).map(f64::sqrt);
+        let eta0_p = (n0 * n0).zip(q0, |a, b| a / b);
+        let cos0 = q0.zip(n0, |a, b| a / b);
+        let ratio = Cx4::gather(substrate).mul(sub.inv_eta_s);
+        Self {
+            eta0: [q0, eta0_p],
+            eta_sub: [sub.eta_s, sub.eta_p],
+            t_factor_p: Cx4 {
+                re: ratio.re * cos0,
+                im: ratio.im * cos0,
+            },
+        }
+    }
+}
+
+/// The responses of `layers` between `ends` at four wavelengths: the layer loop and the
+/// finish in lanes, products fused where `S` has the instructions.
+#[inline(always)]
+fn front_responses<'a, S: pulp::Simd, I: Iterator<Item = (&'a Tilted4, f64)>>(
+    layers: I,
+    ends: &FrontEnds4,
+    wavelength_nm: [f64; 4],
+) -> [Response; 4] {
+    let k0 = F4(wavelength_nm.map(|w| std::f64::consts::TAU / w));
+    let ([(bs, cs), (bp, cp)], log_s, log_p) = if S::IS_SCALAR {
+        product4::<Plain>(layers, ends.eta_sub, k0)
+    } else {
+        product4::<Fused>(layers, ends.eta_sub, k0)
+    };
+    let one = Cx4 {
+        re: F4::ONE,
+        im: F4::ZERO,
+    };
+    let s = finish4(ends.eta0[0], bs, cs, ends.eta_sub[0], one, log_s);
+    let p = finish4(
+        ends.eta0[1],
+        bp,
+        cp,
+        ends.eta_sub[1],
+        ends.t_factor_p,
+        log_p,
+    );
+    std::array::from_fn(|i| {
+        let (s, p) = (s.lane(i), p.lane(i));
+        Response {
+            r_s: s.reflectance,
+            r_p: p.reflectance,
+            t_s: s.transmittance,
+            t_p: p.transmittance,
+            a_s: s.absorptance,
+            a_p: p.absorptance,
+            amp_r_s: s.r,
+            amp_r_p: p.r,
+            amp_t_s: s.t,
+            amp_t_p: p.t,
+        }
+    })
 }
 
 /// R, T, A and amplitudes of one polarisation in four lanes, or what to finish lane by lane.
@@ -432,6 +498,22 @@ fn finish4(eta0: F4, b: Cx4, c: Cx4, eta_sub: Cx4, t_factor: Cx4, log_scale: F4)
     }
 }
 
+/// [x, y] ← [cos·x − i·u·y, cos·y − i·w·x] with real `cos`, `u`, `w`: a lossless layer's
+/// matrix applied to a column [B; C] (u = sin δ/η, w = η sin δ).
+#[inline(always)]
+pub(crate) fn rotate<M: Mad>([x, y]: [Cx4; 2], cos: F4, u: F4, w: F4) -> [Cx4; 2] {
+    [
+        Cx4 {
+            re: M::mad(u, y.im, cos * x.re),
+            im: M::mad(-u, y.re, cos * x.im),
+        },
+        Cx4 {
+            re: M::mad(w, x.im, cos * y.re),
+            im: M::mad(-w, x.re, cos * y.im),
+        },
+    ]
+}
+
 /// [`product4`] as an operation for [`simd::run_at`].
 struct Product<I> {
     layers: I,
@@ -488,20 +570,8 @@ fn product4<'a, M: Mad>(
         if m.real {
             // Lossless and propagating: cos δ and the admittances are real, i sin δ is
             // imaginary, so each complex product is two real ones.
-            let rotate = |b: Cx4, c: Cx4, eta: F4, inv_eta: F4| {
-                let (u, v) = (sin_a * inv_eta, sin_a * eta);
-                let b2 = Cx4 {
-                    re: M::mad(u, c.im, cos_a * b.re),
-                    im: M::mad(-u, c.re, cos_a * b.im),
-                };
-                let c2 = Cx4 {
-                    re: M::mad(v, b.im, cos_a * c.re),
-                    im: M::mad(-v, b.re, cos_a * c.im),
-                };
-                (b2, c2)
-            };
-            (bs, cs) = rotate(bs, cs, m.eta_s.re, m.inv_eta_s.re);
-            (bp, cp) = rotate(bp, cp, m.eta_p.re, m.inv_eta_p.re);
+            [bs, cs] = rotate::<M>([bs, cs], cos_a, sin_a * m.inv_eta_s.re, sin_a * m.eta_s.re);
+            [bp, cp] = rotate::<M>([bp, cp], cos_a, sin_a * m.inv_eta_p.re, sin_a * m.eta_p.re);
             continue;
         }
         // cosh b · e^(−b) and sinh b · e^(−b), with b = Im δ >= 0 (q is on the decaying branch)

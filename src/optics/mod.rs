@@ -358,6 +358,9 @@ pub struct Media4 {
     setups: [Setup; 4],
     /// Each layer material in four lanes.
     packed: Vec<lanes::Tilted4>,
+    /// Light from the front onto a semi-infinite substrate: the ends in lanes, so
+    /// [`solve4_with`] runs in lanes from start to end.
+    front: Option<lanes::FrontEnds4>,
 }
 
 impl Media4 {
@@ -369,6 +372,7 @@ impl Media4 {
             side,
             setups: std::array::from_fn(|i| Setup::new(stacks[i], aoi_rad[i], side)),
             packed: Vec::new(),
+            front: None,
         };
         media.tilt_materials(stacks);
         media
@@ -384,6 +388,13 @@ impl Media4 {
     }
 
     fn tilt_materials(&mut self, stacks: [&StackAt<'_>; 4]) {
+        self.front = (self.side == Side::Front && stacks[0].substrate_mm.is_none()).then(|| {
+            lanes::FrontEnds4::new(
+                stacks.map(|s| s.incident),
+                stacks.map(|s| s.substrate),
+                simd::F4(self.setups.each_ref().map(|s| s.snell)),
+            )
+        });
         let setups = &self.setups;
         self.packed.clear();
         let snell = setups.each_ref().map(|s| s.snell);
@@ -448,6 +459,15 @@ pub fn solve4_with(
     let (setups, side) = (&media.setups, media.side);
     let mats: &[lanes::Tilted4] = &media.packed;
     let layers = stacks[0].layers;
+    if let Some(ends) = &media.front {
+        let front = lanes::FrontWith {
+            packed: mats,
+            ends,
+            layers,
+            wavelength_nm,
+        };
+        return simd::run_at(simd::Level::best(), front);
+    }
     let problems: [Problem<'_>; 4] = [
         (|s| &s.front_out, Order::Deposition, layers),
         (|s| &s.front_in, Order::Reversed, layers),
