@@ -8,7 +8,7 @@ use num_complex::Complex64;
 use serde::{Deserialize, Serialize};
 
 use super::MaterialError;
-use crate::table::interp::{held, held_each};
+use crate::table::interp::{held, held_each, held_each_at};
 
 /// Photon energy in eV times wavelength in µm (h c / e), as used by the Lorentz–Drude form.
 pub const EV_UM: f64 = 1.239_841_984;
@@ -220,6 +220,15 @@ impl Model {
                 for o in out.iter_mut() {
                     *o = real_sqrt(a + o.re);
                 }
+            }
+            Model::Table { rows } => {
+                held_each_at(
+                    rows,
+                    wavelengths_nm,
+                    |r| r.0,
+                    |r| [r.1, r.2],
+                    |i, [n, k]| out[i] = Complex64::new(n, k),
+                );
             }
             _ => {
                 for (o, &w) in out.iter_mut().zip(wavelengths_nm) {

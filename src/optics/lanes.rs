@@ -274,8 +274,8 @@ pub(crate) struct Front4<'a> {
     pub(crate) materials: [&'a [Complex64]; 4],
     /// The layers, deposition order: (material, nm).
     pub(crate) layers: &'a [(usize, f64)],
-    /// Angle of incidence of each point (radians).
-    pub(crate) aoi_rad: [f64; 4],
+    /// Sine of each point's angle of incidence.
+    pub(crate) sin_aoi: [f64; 4],
     /// Vacuum wavelength of each point (nm).
     pub(crate) wavelength_nm: [f64; 4],
     /// Buffer for the tilted layer materials.
@@ -288,7 +288,7 @@ impl pulp::WithSimd for Front4<'_> {
     #[inline(always)]
     fn with_simd<S: pulp::Simd>(self, _simd: S) -> Self::Output {
         let n0 = F4(self.incident.map(|n| n.re));
-        let snell = n0 * F4(self.aoi_rad.map(f64::sin));
+        let snell = n0 * F4(self.sin_aoi);
         self.packed.clear();
         let materials = self.materials;
         // A plain loop, not an iterator adapter: so the tilting is inlined here and compiled

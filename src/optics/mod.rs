@@ -412,6 +412,9 @@ pub struct Scratch4 {
     media: Option<Media4>,
     /// The layer materials tilted in lanes (light from the front, semi-infinite substrate).
     packed: Vec<lanes::Tilted4>,
+    /// The last angles (their bits) and their sines: a sweep over wavelengths asks for the
+    /// same angles every time.
+    sines: Option<([u64; 4], [f64; 4])>,
 }
 
 /// [`solve`] for four points at once in SIMD lanes — four wavelengths of a spectrum or four
@@ -427,12 +430,21 @@ pub fn solve4(
 ) -> [Response; 4] {
     if side == Side::Front && stacks[0].substrate_mm.is_none() {
         // The common case, in lanes from start to end.
+        let key = aoi_rad.map(f64::to_bits);
+        let sin_aoi = match scratch.sines {
+            Some((k, sines)) if k == key => sines,
+            _ => {
+                let sines = aoi_rad.map(f64::sin);
+                scratch.sines = Some((key, sines));
+                sines
+            }
+        };
         let front = lanes::Front4 {
             incident: stacks.map(|s| s.incident),
             substrate: stacks.map(|s| s.substrate),
             materials: stacks.map(|s| s.materials),
             layers: stacks[0].layers,
-            aoi_rad,
+            sin_aoi,
             wavelength_nm,
             packed: &mut scratch.packed,
         };

@@ -22,7 +22,11 @@ enum Spot {
 }
 
 fn locate<R>(rows: &[R], x: f64, at: &impl Fn(&R) -> f64) -> Spot {
-    let hi = rows.partition_point(|r| at(r) <= x);
+    spot(rows, x, at, rows.partition_point(|r| at(r) <= x))
+}
+
+/// The spot of `x` given `hi`, the number of rows with `at(row) <= x`.
+fn spot<R>(rows: &[R], x: f64, at: &impl Fn(&R) -> f64, hi: usize) -> Spot {
     if hi == 0 {
         return Spot::Before;
     }
@@ -79,6 +83,53 @@ pub fn held_each<R, const N: usize>(
     }
 }
 
+/// [`held_each`] at each of `xs`, handing `out(i, values)` the values at `xs[i]`: the same
+/// numbers, but rising `xs` (a spectrum's wavelengths) walk the rows from where the previous
+/// one was found instead of searching them all again.
+pub fn held_each_at<R, const N: usize>(
+    rows: &[R],
+    xs: &[f64],
+    at: impl Fn(&R) -> f64,
+    vals: impl Fn(&R) -> [f64; N],
+    mut out: impl FnMut(usize, [f64; N]),
+) {
+    let (Some(first), Some(last)) = (rows.first(), rows.last()) else {
+        for i in 0..xs.len() {
+            out(i, [f64::NAN; N]);
+        }
+        return;
+    };
+    // The number of rows with at(row) <= the previous x.
+    let mut hi = 0;
+    for (i, &x) in xs.iter().enumerate() {
+        let step_on = |hi: usize| rows.get(hi).is_some_and(|r| at(r) <= x);
+        let behind = hi > 0 && at(&rows[hi - 1]) > x;
+        if behind || x.is_nan() {
+            hi = rows.partition_point(|r| at(r) <= x);
+        } else {
+            // A few steps forward, then a search if x has jumped further.
+            let mut steps = 0;
+            while step_on(hi) && steps < 4 {
+                hi += 1;
+                steps += 1;
+            }
+            if step_on(hi) {
+                hi += rows[hi..].partition_point(|r| at(r) <= x);
+            }
+        }
+        let v = match spot(rows, x, &at, hi) {
+            Spot::Before => vals(first),
+            Spot::After => vals(last),
+            Spot::At(i) => vals(&rows[i]),
+            Spot::Between { lo, t } => {
+                let (a, b) = (vals(&rows[lo]), vals(&rows[lo + 1]));
+                std::array::from_fn(|i| blend(a[i], b[i], t))
+            }
+        };
+        out(i, v);
+    }
+}
+
 /// The value of the curve `ys` over rising `xs` at `x` by straight-line interpolation, or
 /// `None` outside `xs[0]..=xs[last]` (and for NaN). A point of `xs` gives its own `ys` value
 /// exactly. Extra entries of the longer slice are ignored.
@@ -119,6 +170,50 @@ mod tests {
             None,
             "shorter ys limit the span"
         );
+    }
+
+    /// Walking rising, falling, repeated and jumping xs (and NaN) gives exactly what one
+    /// search per x gives.
+    #[test]
+    fn walking_the_rows_equals_searching_them() {
+        let rows: Vec<(f64, f64, f64)> = (0..50)
+            .map(|i| {
+                (
+                    400.0 + 10.0 * f64::from(i),
+                    f64::from(i).sin(),
+                    f64::from(i) * 0.1,
+                )
+            })
+            .collect();
+        let mut xs: Vec<f64> = (0..300).map(|i| 380.0 + 0.5 * f64::from(i)).collect();
+        xs.extend([
+            400.0,
+            400.0,
+            890.0,
+            395.0,
+            1000.0,
+            650.0,
+            f64::NAN,
+            500.0,
+            399.9,
+        ]);
+        xs.extend((0..40).map(|i| 900.0 - 13.0 * f64::from(i)));
+        let (at, vals) = (|r: &(f64, f64, f64)| r.0, |r: &(f64, f64, f64)| [r.1, r.2]);
+        let mut seen = 0;
+        held_each_at(&rows, &xs, at, vals, |i, v| {
+            let one = held_each(&rows, xs[i], at, vals);
+            for k in 0..2 {
+                assert!(
+                    v[k].to_bits() == one[k].to_bits(),
+                    "x = {}: {:?} vs {:?}",
+                    xs[i],
+                    v,
+                    one
+                );
+            }
+            seen += 1;
+        });
+        assert_eq!(seen, xs.len());
     }
 
     #[test]
