@@ -38,7 +38,8 @@ fi
 TIMEFORMAT=%R
 times=()
 for _ in $(seq "$runs"); do
-    t=$( { time "$bin" "${args[@]}" > /dev/null; } 2>&1 )
+    # Only the time goes to the capture: the program's own messages are dropped.
+    t=$( { time "$bin" "${args[@]}" > /dev/null 2> /dev/null; } 2>&1 )
     times+=("$t")
 done
 printf '%s\n' "${times[@]}" | sort -n | awk -v runs="$runs" '

@@ -330,10 +330,11 @@ pub(super) fn index_table(
     }
     let width = mats.len();
     let mut out = vec![Complex64::ZERO; wavelengths_nm.len() * width];
-    let mut column = [Complex64::ZERO; BLOCK];
-    for (block, wl) in wavelengths_nm.chunks(BLOCK).enumerate() {
+    // One block of rows: its indices, or the first failure in row-major order (the lowest
+    // row, and at it the first material).
+    let fill = |wl: &[f64], rows: &mut [Complex64]| -> Result<(), MaterialError> {
+        let mut column = [Complex64::ZERO; BLOCK];
         let column = &mut column[..wl.len()];
-        // The first failure in row-major order: the lowest row, and at it the first material.
         let mut first_bad: Option<(usize, MaterialError)> = None;
         for (m, mat) in mats.iter().enumerate() {
             if let Err((row, e)) = mat.indices_at(wl, column)
@@ -342,14 +343,19 @@ pub(super) fn index_table(
                 first_bad = Some((row, e));
             }
             for (r, n) in column.iter().enumerate() {
-                out[(block * BLOCK + r) * width + m] = *n;
+                rows[r * width + m] = *n;
             }
         }
-        if let Some((_, e)) = first_bad {
-            return Err(e.into());
-        }
+        first_bad.map_or(Ok(()), |(_, e)| Err(e))
+    };
+    let failure = wavelengths_nm
+        .chunks(BLOCK)
+        .zip(out.chunks_mut(BLOCK * width))
+        .find_map(|(wl, rows)| fill(wl, rows).err());
+    match failure {
+        Some(e) => Err(e.into()),
+        None => Ok(out),
     }
-    Ok(out)
 }
 
 pub(super) fn warnings(
@@ -359,11 +365,21 @@ pub(super) fn warnings(
 ) -> Vec<Warning> {
     let mut out: Vec<Warning> = Vec::new();
     let mut seen: Vec<&str> = Vec::new();
+    // The sweep's span, once: a material whose range holds it needs no closer look.
+    let (lo, hi) = wavelengths_nm
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &w| {
+            (a.min(w), b.max(w))
+        });
     for m in all_materials(d) {
         if seen.contains(&m.name.as_str()) {
             continue;
         }
         seen.push(&m.name);
+        let (min_nm, max_nm) = m.valid_range_nm();
+        if min_nm <= lo && hi <= max_nm {
+            continue;
+        }
         if let Some(w) = m.range_warning(wavelengths_nm) {
             out.push(Warning::Extrapolated(w));
         }
@@ -489,6 +505,40 @@ pub fn angle_scan(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// A long sweep (evaluated in blocks) reports the first wavelength in its order without a
+    /// usable index, and otherwise the same numbers as one at a time.
+    #[test]
+    fn the_index_table_names_the_first_bad_wavelength_in_order() {
+        use crate::material::Model;
+        // n = 1.5 + 2000/λ² (λ in µm) passes the largest accepted n (1000) below about 1.415 µm.
+        let steep = Material::user(
+            "Steep",
+            Model::Cauchy {
+                a: 1.5,
+                b: 2000.0,
+                c: 0.0,
+            },
+        );
+        let glass = Material::user("Glass", Model::Constant { n: 1.5, k: 0.0 });
+        // Falling wavelengths, 6000 of them: the failures sit in the last blocks.
+        let wl: Vec<f64> = (0..6000).map(|i| 3000.0 - 0.4 * f64::from(i)).collect();
+        let first_bad = *wl
+            .iter()
+            .find(|&&w| steep.index_at(w).is_err())
+            .expect("some wavelength fails");
+        match index_table(&[&glass, &steep], &wl) {
+            Err(SweepError::Material(MaterialError::NoIndex { wavelength_nm, .. })) => {
+                assert_eq!(wavelength_nm.to_bits(), first_bad.to_bits());
+            }
+            other => panic!("expected the first bad wavelength, got {other:?}"),
+        }
+        let good: Vec<f64> = wl.iter().copied().filter(|&w| w > 1500.0).collect();
+        let table = index_table(&[&glass, &steep], &good).expect("all good");
+        for (row, &w) in good.iter().enumerate() {
+            assert_eq!(table[2 * row + 1], steep.index_at(w).unwrap());
+        }
+    }
 
     #[test]
     fn grid_includes_the_end_even_when_the_step_does_not_divide() {
