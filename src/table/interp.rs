@@ -48,6 +48,27 @@ fn spot<R>(rows: &[R], x: f64, at: &impl Fn(&R) -> f64, hi: usize) -> Spot {
     }
 }
 
+impl Spot {
+    /// The `N` values of `rows` here: the end rows' (`ends`) outside them, a row's own on it,
+    /// interpolated between two.
+    fn values<R, const N: usize>(
+        self,
+        rows: &[R],
+        (first, last): (&R, &R),
+        vals: &impl Fn(&R) -> [f64; N],
+    ) -> [f64; N] {
+        match self {
+            Spot::Before => vals(first),
+            Spot::After => vals(last),
+            Spot::At(i) => vals(&rows[i]),
+            Spot::Between { lo, t } => {
+                let (a, b) = (vals(&rows[lo]), vals(&rows[lo + 1]));
+                std::array::from_fn(|i| blend(a[i], b[i], t))
+            }
+        }
+    }
+}
+
 fn blend(a: f64, b: f64, t: f64) -> f64 {
     a + t * (b - a)
 }
@@ -72,15 +93,7 @@ pub fn held_each<R, const N: usize>(
     let (Some(first), Some(last)) = (rows.first(), rows.last()) else {
         return [f64::NAN; N];
     };
-    match locate(rows, x, &at) {
-        Spot::Before => vals(first),
-        Spot::After => vals(last),
-        Spot::At(i) => vals(&rows[i]),
-        Spot::Between { lo, t } => {
-            let (a, b) = (vals(&rows[lo]), vals(&rows[lo + 1]));
-            std::array::from_fn(|i| blend(a[i], b[i], t))
-        }
-    }
+    locate(rows, x, &at).values(rows, (first, last), &vals)
 }
 
 /// [`held_each`] at each of `xs`, handing `out(i, values)` the values at `xs[i]`: the same
@@ -117,16 +130,7 @@ pub fn held_each_at<R, const N: usize>(
                 hi += rows[hi..].partition_point(|r| at(r) <= x);
             }
         }
-        let v = match spot(rows, x, &at, hi) {
-            Spot::Before => vals(first),
-            Spot::After => vals(last),
-            Spot::At(i) => vals(&rows[i]),
-            Spot::Between { lo, t } => {
-                let (a, b) = (vals(&rows[lo]), vals(&rows[lo + 1]));
-                std::array::from_fn(|i| blend(a[i], b[i], t))
-            }
-        };
-        out(i, v);
+        out(i, spot(rows, x, &at, hi).values(rows, (first, last), &vals));
     }
 }
 
