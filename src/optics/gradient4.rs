@@ -31,6 +31,21 @@ pub struct GradientScratch4 {
     terms: Vec<Terms>,
     front: [Pass; 4],
     inside: [Pass; 4],
+    /// Only R's and T's derivatives are wanted (see [`GradientScratch4::intensities_only`]).
+    intensities_only: bool,
+}
+
+impl GradientScratch4 {
+    /// Buffers for a caller that needs only the derivatives of R and T (the optimiser): on a
+    /// semi-infinite substrate the results' amplitude-derivative lists (`d_amp_*`) are then
+    /// left empty, which saves two thirds of what the pass writes per layer.
+    #[must_use]
+    pub fn intensities_only() -> Self {
+        Self {
+            intensities_only: true,
+            ..Self::default()
+        }
+    }
 }
 
 #[inline(always)]
@@ -94,7 +109,7 @@ fn pass4(
     below: &mut Vec<([[Cx4; 2]; 2], [F4; 2])>,
     terms: &mut Vec<Terms>,
     out: &mut [Pass; 4],
-    mut direct: Option<&mut [Gradient; 4]>,
+    mut direct: Option<(&mut [Gradient; 4], bool)>,
 ) {
     let n = layers.len();
     // Every entry is written by the backward pass, so the buffers are only sized, not cleared.
@@ -148,7 +163,7 @@ fn pass4(
         };
     }
     let (sink, results) = match direct.take() {
-        Some(grads) => {
+        Some((grads, amplitudes)) => {
             let results = [0, 1].map(|pol| {
                 let amp = |i: usize| {
                     let c = &out[i].result;
@@ -162,9 +177,19 @@ fn pass4(
             });
             for (g, lane) in grads.iter_mut().zip(out.iter()) {
                 g.resize(n);
+                if !amplitudes {
+                    for v in [
+                        &mut g.d_amp_r_s,
+                        &mut g.d_amp_r_p,
+                        &mut g.d_amp_t_s,
+                        &mut g.d_amp_t_p,
+                    ] {
+                        v.clear();
+                    }
+                }
                 g.response = lane.result.response();
             }
-            (Sink::Direct(grads), Some(results))
+            (Sink::Direct(grads, amplitudes), Some(results))
         }
         None => (Sink::Pass(out), None),
     };
@@ -204,8 +229,8 @@ type Terms = [[Cx4; 3]; 2];
 enum Sink<'a> {
     /// dr and dD/D per point.
     Pass(&'a mut [Pass; 4]),
-    /// The finished derivatives of R, T and the amplitudes per point.
-    Direct(&'a mut [Gradient; 4]),
+    /// The finished derivatives of R, T and (when the flag is set) the amplitudes per point.
+    Direct(&'a mut [Gradient; 4], bool),
 }
 
 impl Sink<'_> {
@@ -224,7 +249,24 @@ impl Sink<'_> {
                     }
                 }
             }
-            Self::Direct(grads) => {
+            Self::Direct(grads, false) => {
+                for (i, g) in grads.iter_mut().enumerate() {
+                    for (pol, (d_r, d_t)) in
+                        [(&mut g.d_r_s, &mut g.d_t_s), (&mut g.d_r_p, &mut g.d_t_p)]
+                            .into_iter()
+                            .enumerate()
+                    {
+                        for ((term, d_r), d_t) in
+                            terms.iter().zip(d_r.iter_mut()).zip(d_t.iter_mut())
+                        {
+                            let rt = &term[pol][2];
+                            *d_r = rt.re.0[i];
+                            *d_t = rt.im.0[i];
+                        }
+                    }
+                }
+            }
+            Self::Direct(grads, true) => {
                 for (i, g) in grads.iter_mut().enumerate() {
                     let Gradient {
                         d_r_s,
@@ -592,8 +634,10 @@ pub(crate) fn solve_gradient4_at(
         terms,
         front,
         inside,
+        intensities_only,
     } = scratch;
     let semi_infinite = stacks[0].substrate_mm.is_none();
+    let amplitudes = !*intensities_only;
     // On a semi-infinite substrate the front pass gives the derivatives themselves.
     pass4(
         level,
@@ -606,7 +650,7 @@ pub(crate) fn solve_gradient4_at(
         below,
         terms,
         front,
-        semi_infinite.then_some(&mut *out),
+        semi_infinite.then_some((&mut *out, amplitudes)),
     );
     if semi_infinite {
         return;
@@ -753,6 +797,58 @@ mod tests {
     /// 4000 quarter-wave layers in their stop band under absorbing layers (see the one-point
     /// test in `gradient`): the lanes stay finite and agree with the one-point derivatives,
     /// which are checked against central differences there.
+    /// Asking for R's and T's derivatives only gives the same numbers, bit for bit, and
+    /// leaves the amplitude lists empty; a second full call after it fills them again.
+    #[test]
+    fn intensities_only_gives_the_same_derivatives_of_r_and_t() {
+        let materials = [Complex64::new(2.3, 0.02), Complex64::new(1.46, 0.0)];
+        let layers: Vec<(usize, f64)> = (0..12).map(|i| (i % 2, 40.0 + 9.0 * i as f64)).collect();
+        let stack = StackAt {
+            incident: Complex64::new(1.0, 0.0),
+            substrate: Complex64::new(1.52, 0.0),
+            exit: Complex64::new(1.0, 0.0),
+            materials: &materials,
+            layers: &layers,
+            back_layers: &[],
+            substrate_mm: None,
+        };
+        let wl = [450.0, 520.0, 610.0, 700.0];
+        let aoi = [40f64.to_radians(); 4];
+        let media = Media4::new([&stack; 4], aoi, Side::Front);
+        let mut full: [Gradient; 4] = Default::default();
+        solve_gradient4(
+            &media,
+            [&stack; 4],
+            wl,
+            &mut GradientScratch4::default(),
+            &mut full,
+        );
+        let mut only: [Gradient; 4] = full.clone();
+        let mut scratch = GradientScratch4::intensities_only();
+        solve_gradient4(&media, [&stack; 4], wl, &mut scratch, &mut only);
+        for (a, b) in full.iter().zip(&only) {
+            for (x, y) in [
+                (&a.d_r_s, &b.d_r_s),
+                (&a.d_r_p, &b.d_r_p),
+                (&a.d_t_s, &b.d_t_s),
+                (&a.d_t_p, &b.d_t_p),
+            ] {
+                assert_eq!(x.len(), layers.len());
+                assert!(x.iter().zip(y).all(|(x, y)| x.to_bits() == y.to_bits()));
+            }
+            assert!(b.d_amp_r_s.is_empty() && b.d_amp_t_p.is_empty());
+            assert_eq!(a.response, b.response);
+        }
+        solve_gradient4(
+            &media,
+            [&stack; 4],
+            wl,
+            &mut GradientScratch4::default(),
+            &mut only,
+        );
+        assert_eq!(only[2].d_amp_t_s, full[2].d_amp_t_s);
+    }
+
     #[test]
     fn thousands_of_layers_stay_finite_in_lanes() {
         let materials = [

@@ -92,11 +92,21 @@ pub struct Evaluator {
     media: Vec<Media4>,
 }
 
-/// Reusable buffers for the derivative passes ([`Evaluator::jacobian`]).
-#[derive(Debug, Default)]
+/// Reusable buffers for the derivative passes ([`Evaluator::jacobian`]): the optimiser reads
+/// only R's and T's derivatives.
+#[derive(Debug)]
 pub(crate) struct GradientWork {
     scratch: GradientScratch4,
     grads: [Gradient; 4],
+}
+
+impl Default for GradientWork {
+    fn default() -> Self {
+        Self {
+            scratch: GradientScratch4::intensities_only(),
+            grads: Default::default(),
+        }
+    }
 }
 
 thread_local! {
