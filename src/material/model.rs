@@ -192,31 +192,17 @@ impl Model {
     /// numbers, bit for bit, but the formulas run over all wavelengths in one loop each, so
     /// their divisions and square roots overlap instead of waiting on one another.
     pub fn indices_at(&self, wavelengths_nm: &[f64], out: &mut [Complex64]) {
-        let l2 = |w: f64| {
-            let um = w * 1e-3;
-            um * um
-        };
         match self {
-            // The sums gather in `out`'s real parts, in the order `index_at` adds them.
+            // n² = base + Σ term(b, c, λ²): the sums gather in `out`'s real parts, term by
+            // term in the order `index_at` adds them.
             Model::Sellmeier { a, b, c } => {
-                out.fill(Complex64::ZERO);
-                for (b, c) in b.iter().zip(c) {
-                    for (s, &w) in out.iter_mut().zip(wavelengths_nm) {
-                        let l2 = l2(w);
-                        s.re += b * l2 / (l2 - c);
-                    }
-                }
+                gather_terms(out, wavelengths_nm, b, c, |b, c, l2| b * l2 / (l2 - c));
                 for o in out.iter_mut() {
                     *o = real_sqrt(1.0 + a + o.re);
                 }
             }
             Model::Rational { a, b, c } => {
-                out.fill(Complex64::ZERO);
-                for (b, c) in b.iter().zip(c) {
-                    for (s, &w) in out.iter_mut().zip(wavelengths_nm) {
-                        s.re += b / (l2(w) - c);
-                    }
-                }
+                gather_terms(out, wavelengths_nm, b, c, |b, c, l2| b / (l2 - c));
                 for o in out.iter_mut() {
                     *o = real_sqrt(a + o.re);
                 }
@@ -284,6 +270,24 @@ impl Model {
                 }
                 n
             }
+        }
+    }
+}
+
+/// Σ `term(b_i, c_i, λ²)` over the coefficient pairs at each wavelength (λ in µm), into the
+/// real parts of `out`, one loop per term so the divisions of neighbouring wavelengths overlap.
+fn gather_terms(
+    out: &mut [Complex64],
+    wavelengths_nm: &[f64],
+    b: &[f64],
+    c: &[f64],
+    term: impl Fn(f64, f64, f64) -> f64,
+) {
+    out.fill(Complex64::ZERO);
+    for (&b, &c) in b.iter().zip(c) {
+        for (s, &w) in out.iter_mut().zip(wavelengths_nm) {
+            let um = w * 1e-3;
+            s.re += term(b, c, um * um);
         }
     }
 }

@@ -324,19 +324,10 @@ impl pulp::WithSimd for Forward<'_> {
     fn with_simd<S: pulp::Simd>(self, _simd: S) -> Self::Output {
         // Direct calls (not through a function pointer), so each is inlined here and
         // compiled for this instruction set.
-        let Self {
-            mats,
-            layers,
-            reversed,
-            k0,
-            eta_sub,
-            trig,
-            below,
-        } = self;
         if S::IS_SCALAR {
-            forward::<Plain>(mats, layers, reversed, k0, eta_sub, trig, below)
+            forward::<Plain>(self)
         } else {
-            forward::<Fused>(mats, layers, reversed, k0, eta_sub, trig, below)
+            forward::<Fused>(self)
         }
     }
 }
@@ -360,23 +351,10 @@ impl pulp::WithSimd for Backward<'_> {
 
     #[inline(always)]
     fn with_simd<S: pulp::Simd>(self, _simd: S) {
-        let Self {
-            mats,
-            layers,
-            reversed,
-            trig,
-            below,
-            eta0,
-            v,
-            norm,
-            results,
-            terms,
-        } = self;
-        let ends = (eta0, v, norm, results);
         if S::IS_SCALAR {
-            backward::<Plain>(mats, layers, reversed, trig, below, ends, terms);
+            backward::<Plain>(self);
         } else {
-            backward::<Fused>(mats, layers, reversed, trig, below, ends, terms);
+            backward::<Fused>(self);
         }
     }
 }
@@ -387,13 +365,15 @@ impl pulp::WithSimd for Backward<'_> {
 #[inline(always)]
 #[allow(clippy::type_complexity, reason = "unpacked by the one caller")]
 fn forward<M: Mad>(
-    mats: &[Tilted4],
-    layers: &[(usize, f64)],
-    reversed: bool,
-    k0: F4,
-    eta_sub: [Cx4; 2],
-    trig: &mut Vec<[Cx4; 3]>,
-    below: &mut Vec<([[Cx4; 2]; 2], [F4; 2])>,
+    Forward {
+        mats,
+        layers,
+        reversed,
+        k0,
+        eta_sub,
+        trig,
+        below,
+    }: Forward<'_>,
 ) -> ([[Cx4; 2]; 2], F4, [F4; 2]) {
     let n = layers.len();
     // Sized once and written in place (a push of these large values goes through memcpy).
@@ -471,22 +451,23 @@ fn forward<M: Mad>(
     (v, log_scale, norm)
 }
 
-/// What the backward pass starts from: the incident admittances (s, p), the final [B; C]
-/// (s, p), the log of the scale taken out of each, and (a semi-infinite substrate) the results.
-type BackwardEnds = ([Cx4; 2], [[Cx4; 2]; 2], [F4; 2], Option<[Res4; 2]>);
-
 /// The backward pass: the adjoint rows [C, −B] (for dr) and [η₀, 1] (for dD) carried down,
 /// contracted with ∂M/∂d · v below each layer.
 #[inline(always)]
 #[allow(clippy::too_many_arguments)]
 fn backward<M: Mad>(
-    mats: &[Tilted4],
-    layers: &[(usize, f64)],
-    reversed: bool,
-    trig: &[[Cx4; 3]],
-    below: &[([[Cx4; 2]; 2], [F4; 2])],
-    (eta0, v, norm, results): BackwardEnds,
-    terms: &mut Vec<Terms>,
+    Backward {
+        mats,
+        layers,
+        reversed,
+        trig,
+        below,
+        eta0,
+        v,
+        norm,
+        results,
+        terms,
+    }: Backward<'_>,
 ) {
     let n = layers.len();
     let zero = Cx4 {
