@@ -63,16 +63,27 @@ pub(super) fn check_finite(
     wavelength_nm: impl Fn(usize) -> f64,
     aoi_deg: impl Fn(usize) -> f64,
 ) -> Result<(), SweepError> {
+    check_finite_at(responses.len(), |i| responses[i], wavelength_nm, aoi_deg)
+}
+
+/// [`check_finite`] for `points` points given one at a time by `response`.
+pub(super) fn check_finite_at(
+    points: usize,
+    response: impl Fn(usize) -> Response,
+    wavelength_nm: impl Fn(usize) -> f64,
+    aoi_deg: impl Fn(usize) -> f64,
+) -> Result<(), SweepError> {
     // The quick test first: a sum of numbers is finite only if every one is (a NaN or an
     // infinity carries through; a finite overflow only sends us to the careful search).
     let total = |r: &Response| {
         let z = r.amp_r_s + r.amp_r_p + r.amp_t_s + r.amp_t_p;
         r.r_s + r.r_p + r.t_s + r.t_p + r.a_s + r.a_p + z.re + z.im
     };
-    if responses.iter().all(|r| total(r).is_finite()) {
+    if (0..points).all(|i| total(&response(i)).is_finite()) {
         return Ok(());
     }
-    for (i, r) in responses.iter().enumerate() {
+    for i in 0..points {
+        let r = &response(i);
         let amplitudes = [
             ("r_s", r.amp_r_s),
             ("r_p", r.amp_r_p),

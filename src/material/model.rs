@@ -207,6 +207,7 @@ impl Model {
                     *o = real_sqrt(a + o.re);
                 }
             }
+            Model::Constant { n, k } => out.fill(Complex64::new(*n, *k)),
             Model::Table { rows } => {
                 held_each_at(
                     rows,

@@ -14,9 +14,9 @@
 
 use num_complex::Complex64;
 
-use super::Response;
 use super::simd::{self, F4, Fused, Level, Mad, Plain};
 use super::tmm::{Amplitudes, BIG, Coherent, RENORM_EVERY, SMALL, Tilted, finish, renorm_factor};
+use super::{ColumnsMut, FrontRun, Response};
 
 /// Four complex numbers, real and imaginary parts in separate lanes.
 #[derive(Clone, Copy, Debug)]
@@ -26,6 +26,7 @@ pub(crate) struct Cx4 {
 }
 
 impl Cx4 {
+    #[inline(always)]
     pub(crate) fn gather(z: [Complex64; 4]) -> Self {
         Self {
             re: F4(z.map(|z| z.re)),
@@ -33,6 +34,7 @@ impl Cx4 {
         }
     }
 
+    #[inline(always)]
     pub(crate) fn lane(self, i: usize) -> Complex64 {
         Complex64::new(self.re.0[i], self.im.0[i])
     }
@@ -75,12 +77,6 @@ impl Cx4 {
             im: M::mad(self.im, o.re, self.re * o.im),
         }
     }
-}
-
-/// `a` if `c`, else `b` (a select, not a branch).
-#[inline(always)]
-fn pick(c: bool, a: f64, b: f64) -> f64 {
-    if c { a } else { b }
 }
 
 /// 1/z lane by lane.
@@ -129,8 +125,8 @@ pub(crate) struct Tilted4 {
 
 impl Tilted4 {
     /// Tilts four indices for four Snell invariants at once: [`Tilted::new`] lane by lane,
-    /// branch-free (both roots are formed and the right one chosen), so it vectorises.
-    /// Always inlined, so inside [`front4`] it is compiled for the chosen instruction set.
+    /// branch-free (each case is formed in every lane and chosen by a mask), so it vectorises.
+    /// Always inlined, so inside a kernel it is compiled for the chosen instruction set.
     #[inline(always)]
     pub(crate) fn new(n: [Complex64; 4], snell: [f64; 4]) -> Self {
         let (nr, ni) = (F4(n.map(|z| z.re)), F4(n.map(|z| z.im)));
@@ -140,42 +136,26 @@ impl Tilted4 {
             im: nr * ni + ni * nr,
         };
         let (u, v) = (n2.re - s * s, n2.im);
-        let m = (u * u + v * v).map(f64::sqrt);
-        let half = F4::splat(0.5);
-        let t_pos = (half * (m + u)).map(f64::sqrt);
-        let t_neg = (half * (m - u)).map(f64::sqrt);
-        let two = F4::splat(2.0);
-        let div = |a: F4, b: F4| a.zip(b, |a, b| a / b);
-        // The principal root (see `tmm::principal_sqrt`), then the decaying branch.
-        let re_pos = t_pos;
-        let im_pos = div(v, two * t_pos);
-        let re_neg = div(v.abs(), two * t_neg);
-        let im_neg = t_neg.zip(v, f64::copysign);
-        let mut q = Cx4 {
-            re: F4(std::array::from_fn(|i| {
-                pick(
-                    m.0[i] == 0.0,
-                    0.0,
-                    pick(u.0[i] >= 0.0, re_pos.0[i], re_neg.0[i]),
-                )
-            })),
-            im: F4(std::array::from_fn(|i| {
-                pick(
-                    m.0[i] == 0.0,
-                    v.0[i],
-                    pick(u.0[i] >= 0.0, im_pos.0[i], im_neg.0[i]),
-                )
-            })),
+        let m = (u * u + v * v).sqrt();
+        // The principal root (see `tmm::principal_sqrt`): t = √((|w| + |Re w|) / 2) on both
+        // branches (m − u = m + |u| for u < 0), then the other part by one division.
+        let t = (F4::splat(0.5) * (m + u.abs())).sqrt();
+        let w = v.div(F4::splat(2.0) * t);
+        let negative = u.lt(F4::ZERO);
+        let zero = m.eq(F4::ZERO);
+        let q_re = t.select(negative, w.abs()).select(zero, F4::ZERO);
+        let q_im = w.select(negative, t.copysign(v)).select(zero, v);
+        // The decaying branch: Im q > 0, or Re q > 0 when q is real.
+        let flip = q_im
+            .lt(F4::ZERO)
+            .or(q_im.eq(F4::ZERO).and(q_re.lt(F4::ZERO)));
+        let (q_re, q_im) = (q_re.select(flip, -q_re), q_im.select(flip, -q_im));
+        // Exactly at a critical angle: a tiny q, as in `Tilted::new`.
+        let tiny = (q_re * q_re + q_im * q_im).lt(F4::splat(1e-300));
+        let q = Cx4 {
+            re: q_re.select(tiny, F4::ZERO),
+            im: q_im.select(tiny, F4::splat(1e-150)),
         };
-        for i in 0..4 {
-            let (re, im) = (q.re.0[i], q.im.0[i]);
-            let flip = im < 0.0 || (im == 0.0 && re < 0.0);
-            let (re, im) = (pick(flip, -re, re), pick(flip, -im, im));
-            // Exactly at a critical angle: a tiny q, as in `Tilted::new`.
-            let tiny = re * re + im * im < 1e-300;
-            q.re.0[i] = pick(tiny, 0.0, re);
-            q.im.0[i] = pick(tiny, 1e-150, im);
-        }
         let inv_q = inv(q);
         let inv_n2 = inv(n2);
         Self {
@@ -375,25 +355,7 @@ fn front_responses<'a, S: pulp::Simd, I: Iterator<Item = (&'a Tilted4, f64)>>(
     ends: &FrontEnds4,
     wavelength_nm: [f64; 4],
 ) -> [Response; 4] {
-    let k0 = F4(wavelength_nm.map(|w| std::f64::consts::TAU / w));
-    let ([(bs, cs), (bp, cp)], log_s, log_p) = if S::IS_SCALAR {
-        product4::<Plain>(layers, ends.eta_sub, k0)
-    } else {
-        product4::<Fused>(layers, ends.eta_sub, k0)
-    };
-    let one = Cx4 {
-        re: F4::ONE,
-        im: F4::ZERO,
-    };
-    let s = finish4(ends.eta0[0], bs, cs, ends.eta_sub[0], one, log_s);
-    let p = finish4(
-        ends.eta0[1],
-        bp,
-        cp,
-        ends.eta_sub[1],
-        ends.t_factor_p,
-        log_p,
-    );
+    let [s, p] = front_finished::<S, I>(layers, ends, wavelength_nm);
     std::array::from_fn(|i| {
         let (s, p) = (s.lane(i), p.lane(i));
         Response {
@@ -411,6 +373,140 @@ fn front_responses<'a, S: pulp::Simd, I: Iterator<Item = (&'a Tilted4, f64)>>(
     })
 }
 
+/// [`front_responses`] up to the finished s and p lanes.
+#[inline(always)]
+fn front_finished<'a, S: pulp::Simd, I: Iterator<Item = (&'a Tilted4, f64)>>(
+    layers: I,
+    ends: &FrontEnds4,
+    wavelength_nm: [f64; 4],
+) -> [Finished4; 2] {
+    let k0 = F4(wavelength_nm.map(|w| std::f64::consts::TAU / w));
+    let ([(bs, cs), (bp, cp)], log_s, log_p) = if S::IS_SCALAR {
+        product4::<Plain>(layers, ends.eta_sub, k0)
+    } else {
+        product4::<Fused>(layers, ends.eta_sub, k0)
+    };
+    let one = Cx4 {
+        re: F4::ONE,
+        im: F4::ZERO,
+    };
+    [
+        finish4(ends.eta0[0], bs, cs, ends.eta_sub[0], one, log_s),
+        finish4(
+            ends.eta0[1],
+            bp,
+            cp,
+            ends.eta_sub[1],
+            ends.t_factor_p,
+            log_p,
+        ),
+    ]
+}
+
+/// [`Front4`] over a whole [`FrontRun`], four points at a time, each group's results written
+/// straight into the columns: the loop runs inside one instruction-set version, and nothing
+/// per point is built in between.
+pub(crate) struct FrontRun4<'a, 'b> {
+    /// The run (its columns checked against each other by the caller).
+    pub(crate) run: &'a FrontRun<'a>,
+    /// Sine of the run's angle of incidence.
+    pub(crate) sin_aoi: f64,
+    /// Where the results go.
+    pub(crate) out: &'a mut ColumnsMut<'b>,
+    /// Buffer for the tilted layer materials.
+    pub(crate) packed: &'a mut Vec<Tilted4>,
+}
+
+impl pulp::WithSimd for FrontRun4<'_, '_> {
+    type Output = ();
+
+    #[inline(always)]
+    fn with_simd<S: pulp::Simd>(self, _simd: S) {
+        let run = self.run;
+        let points = run.wavelength_nm.len();
+        let count = run.materials.len() / points.max(1);
+        let sin_aoi = F4::splat(self.sin_aoi);
+        let mut first = 0;
+        while first < points {
+            // Points past the end repeat the last one; their lanes are not written.
+            let at: [usize; 4] = std::array::from_fn(|k| (first + k).min(points - 1));
+            let incident = at.map(|i| run.incident[i]);
+            let snell = F4(incident.map(|n| n.re)) * sin_aoi;
+            self.packed.clear();
+            for m in 0..count {
+                let column = &run.materials[m * points..(m + 1) * points];
+                self.packed
+                    .push(Tilted4::new(at.map(|i| column[i]), snell.0));
+            }
+            let ends = FrontEnds4::new(incident, at.map(|i| run.substrate[i]), snell);
+            let layers = run.layers.iter().map(|&(m, d)| (&self.packed[m], d));
+            let [s, p] = front_finished::<S, _>(layers, &ends, at.map(|i| run.wavelength_nm[i]));
+            store(self.out, first, (points - first).min(4), &s, &p);
+            first += 4;
+        }
+    }
+}
+
+/// Writes the first `valid` lanes of a group's s and p results into `out` from slot `first`:
+/// whole vectors when all four lanes count and were finished in lanes, else lane by lane.
+#[inline(always)]
+fn store(out: &mut ColumnsMut<'_>, first: usize, valid: usize, s: &Finished4, p: &Finished4) {
+    if let (
+        4,
+        Finished4::Lanes {
+            r: r_s,
+            t: t_s,
+            reflectance: rs,
+            transmittance: ts,
+            absorptance: as_,
+        },
+        Finished4::Lanes {
+            r: r_p,
+            t: t_p,
+            reflectance: rp,
+            transmittance: tp,
+            absorptance: ap,
+        },
+    ) = (valid, s, p)
+    {
+        let half = F4::splat(0.5);
+        let span = first..first + 4;
+        let put = |column: &mut [f64], x: F4| column[span.clone()].copy_from_slice(&x.0);
+        put(out.r_s, *rs);
+        put(out.r_p, *rp);
+        put(out.r, half * (*rs + *rp));
+        put(out.t_s, *ts);
+        put(out.t_p, *tp);
+        put(out.t, half * (*ts + *tp));
+        put(out.a_s, *as_);
+        put(out.a_p, *ap);
+        put(out.a, half * (*as_ + *ap));
+        for k in 0..4 {
+            out.amp_r_s[first + k] = r_s.lane(k);
+            out.amp_r_p[first + k] = r_p.lane(k);
+            out.amp_t_s[first + k] = t_s.lane(k);
+            out.amp_t_p[first + k] = t_p.lane(k);
+        }
+        return;
+    }
+    for k in 0..valid {
+        let (s, p, i) = (s.lane(k), p.lane(k), first + k);
+        out.r_s[i] = s.reflectance;
+        out.r_p[i] = p.reflectance;
+        out.r[i] = 0.5 * (s.reflectance + p.reflectance);
+        out.t_s[i] = s.transmittance;
+        out.t_p[i] = p.transmittance;
+        out.t[i] = 0.5 * (s.transmittance + p.transmittance);
+        out.a_s[i] = s.absorptance;
+        out.a_p[i] = p.absorptance;
+        out.a[i] = 0.5 * (s.absorptance + p.absorptance);
+        out.amp_r_s[i] = s.r;
+        out.amp_r_p[i] = p.r;
+        out.amp_t_s[i] = s.t;
+        out.amp_t_p[i] = p.t;
+    }
+}
+
 /// R, T, A and amplitudes of one polarisation in four lanes, or what to finish lane by lane.
 enum Finished4 {
     /// Every lane done in lanes.
@@ -426,6 +522,7 @@ enum Finished4 {
 }
 
 impl Finished4 {
+    #[inline(always)]
     fn lane(&self, i: usize) -> Amplitudes {
         match self {
             Self::Lanes {

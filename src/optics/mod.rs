@@ -417,6 +417,149 @@ pub struct Scratch4 {
     sines: Option<([u64; 4], [f64; 4])>,
 }
 
+/// The most common sweep: light from the front onto a coating on a semi-infinite substrate at
+/// a run of wavelengths and one angle, with each medium's index given per wavelength.
+#[derive(Clone, Copy, Debug)]
+pub struct FrontRun<'a> {
+    /// Vacuum wavelength of each point (nm).
+    pub wavelength_nm: &'a [f64],
+    /// Angle of incidence in the incident medium (radians), the same for every point.
+    pub aoi_rad: f64,
+    /// The incident medium's index at each point (its real part counts: it is transparent).
+    pub incident: &'a [Complex64],
+    /// The substrate's index at each point.
+    pub substrate: &'a [Complex64],
+    /// The layer materials' indices, one column per material, each as long as
+    /// `wavelength_nm`: material `m` at point `i` is `materials[m * points + i]`.
+    pub materials: &'a [Complex64],
+    /// Layers in deposition order (layer 1, on the substrate, first): (material, nm).
+    pub layers: &'a [(usize, f64)],
+}
+
+/// Result columns to write into, one slot per point: R, T and A for s, p and their mean, and
+/// the coating's complex amplitudes (the fields of [`Response`], column by column).
+#[derive(Debug)]
+#[allow(
+    missing_docs,
+    reason = "each column is the Response field of the same name"
+)]
+pub struct ColumnsMut<'a> {
+    pub r_s: &'a mut [f64],
+    pub r_p: &'a mut [f64],
+    pub r: &'a mut [f64],
+    pub t_s: &'a mut [f64],
+    pub t_p: &'a mut [f64],
+    pub t: &'a mut [f64],
+    pub a_s: &'a mut [f64],
+    pub a_p: &'a mut [f64],
+    pub a: &'a mut [f64],
+    pub amp_r_s: &'a mut [Complex64],
+    pub amp_r_p: &'a mut [Complex64],
+    pub amp_t_s: &'a mut [Complex64],
+    pub amp_t_p: &'a mut [Complex64],
+}
+
+impl ColumnsMut<'_> {
+    /// Number of slots (the shortest column).
+    #[must_use]
+    pub fn len(&self) -> usize {
+        [
+            self.r_s.len(),
+            self.r_p.len(),
+            self.r.len(),
+            self.t_s.len(),
+            self.t_p.len(),
+            self.t.len(),
+            self.a_s.len(),
+            self.a_p.len(),
+            self.a.len(),
+            self.amp_r_s.len(),
+            self.amp_r_p.len(),
+            self.amp_t_s.len(),
+            self.amp_t_p.len(),
+        ]
+        .into_iter()
+        .min()
+        .unwrap_or(0)
+    }
+
+    /// Whether there are no slots.
+    #[must_use]
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    /// The first `mid` slots and the rest, as two sets of columns.
+    ///
+    /// # Panics
+    /// If `mid` is past the end of a column.
+    #[must_use]
+    pub fn split_at(self, mid: usize) -> (Self, Self) {
+        macro_rules! split {
+            ($($column:ident),*) => {{
+                $(let $column = self.$column.split_at_mut(mid);)*
+                (Self { $($column: $column.0,)* }, Self { $($column: $column.1,)* })
+            }};
+        }
+        split!(
+            r_s, r_p, r, t_s, t_p, t, a_s, a_p, a, amp_r_s, amp_r_p, amp_t_s, amp_t_p
+        )
+    }
+
+    /// The point at slot `i`, gathered from the columns.
+    #[must_use]
+    pub fn response(&self, i: usize) -> Response {
+        Response {
+            r_s: self.r_s[i],
+            r_p: self.r_p[i],
+            t_s: self.t_s[i],
+            t_p: self.t_p[i],
+            a_s: self.a_s[i],
+            a_p: self.a_p[i],
+            amp_r_s: self.amp_r_s[i],
+            amp_r_p: self.amp_r_p[i],
+            amp_t_s: self.amp_t_s[i],
+            amp_t_p: self.amp_t_p[i],
+        }
+    }
+}
+
+/// Solves a [`FrontRun`] four points at a time in SIMD lanes, writing each point's results
+/// into `out` at its own slot: the same numbers as [`solve4`] for each point (the lanes are
+/// the same), with no per-point structures in between.
+///
+/// # Panics
+/// If the run's columns or `out`'s differ in length from `wavelength_nm`, or a layer names a
+/// material the run has no column for (a programming error, not bad input).
+pub fn solve_front_run(run: &FrontRun<'_>, out: &mut ColumnsMut<'_>, scratch: &mut Scratch4) {
+    let points = run.wavelength_nm.len();
+    assert!(
+        run.incident.len() == points && run.substrate.len() == points && out.len() == points,
+        "a front run's columns differ in length"
+    );
+    if points == 0 {
+        return;
+    }
+    assert!(
+        run.materials.len().is_multiple_of(points),
+        "a front run's material columns are not whole"
+    );
+    let count = run.materials.len() / points;
+    assert!(
+        run.layers.iter().all(|&(m, _)| m < count),
+        "a layer names a material with no column"
+    );
+    simd::run_at(
+        simd::Level::best(),
+        lanes::FrontRun4 {
+            run,
+            sin_aoi: run.aoi_rad.sin(),
+            out,
+            packed: &mut scratch.packed,
+        },
+    );
+}
+
 /// [`solve`] for four points at once in SIMD lanes — four wavelengths of a spectrum or four
 /// angles of a scan. The four stacks must share `layers`, `back_layers` and whether the
 /// substrate is thick (the same design); their indices,

@@ -177,9 +177,43 @@ impl F4 {
         U4(self.0.map(f64::to_bits))
     }
 
+    /// Square root of each lane.
+    #[inline(always)]
+    pub(crate) fn sqrt(self) -> Self {
+        self.map(f64::sqrt)
+    }
+
+    /// Lane-wise quotient.
+    #[inline(always)]
+    pub(crate) fn div(self, o: Self) -> Self {
+        self.zip(o, |a, b| a / b)
+    }
+
+    /// Each lane's magnitude with the sign of `sign`'s lane.
+    #[inline(always)]
+    pub(crate) fn copysign(self, sign: Self) -> Self {
+        self.zip(sign, f64::copysign)
+    }
+
+    /// All ones in the lanes where `self < o`.
+    #[inline(always)]
+    pub(crate) fn lt(self, o: Self) -> U4 {
+        U4(std::array::from_fn(|i| {
+            u64::from(self.0[i] < o.0[i]).wrapping_neg()
+        }))
+    }
+
+    /// All ones in the lanes where `self == o`.
+    #[inline(always)]
+    pub(crate) fn eq(self, o: Self) -> U4 {
+        U4(std::array::from_fn(|i| {
+            u64::from(self.0[i] == o.0[i]).wrapping_neg()
+        }))
+    }
+
     /// `o` where `mask` is all ones and `self` where it is zero, bit by bit.
     #[inline(always)]
-    fn select(self, mask: U4, o: Self) -> Self {
+    pub(crate) fn select(self, mask: U4, o: Self) -> Self {
         let (a, b) = (o.bits(), self.bits());
         Self(std::array::from_fn(|i| {
             f64::from_bits((a.0[i] & mask.0[i]) | (b.0[i] & !mask.0[i]))
@@ -194,11 +228,23 @@ impl F4 {
     }
 }
 
-/// Four `u64` lanes: the bit patterns of an [`F4`].
+/// Four `u64` lanes: the bit patterns of an [`F4`], or a mask (all ones or all zeros).
 #[derive(Clone, Copy, Debug)]
-struct U4([u64; 4]);
+pub(crate) struct U4([u64; 4]);
 
 impl U4 {
+    /// Bitwise and.
+    #[inline(always)]
+    pub(crate) fn and(self, o: Self) -> Self {
+        Self(std::array::from_fn(|i| self.0[i] & o.0[i]))
+    }
+
+    /// Bitwise or.
+    #[inline(always)]
+    pub(crate) fn or(self, o: Self) -> Self {
+        Self(std::array::from_fn(|i| self.0[i] | o.0[i]))
+    }
+
     #[inline(always)]
     fn map(self, f: impl Fn(u64) -> u64) -> Self {
         let a = self.0;
