@@ -399,7 +399,7 @@ fn forward<M: Mad>(
         let (mi, d_nm) = layers[if reversed { n - 1 - p } else { p }];
         let m = &mats[mi];
         let kd = k0 * F4::splat(d_nm);
-        let (sin_a, cos_a) = (m.q.re * kd).sin_cos();
+        let (sin_a, cos_a) = (m.q.re * kd).sin_cos_with::<M>();
         let (cd, is) = if m.real {
             (
                 Cx4 {
@@ -413,7 +413,7 @@ fn forward<M: Mad>(
             )
         } else {
             let b = m.q.im * kd;
-            let em = (-b).exp();
+            let em = (-b).exp_with::<M>();
             let em2 = em * em;
             log_scale += b;
             let (ch, sh) = ((F4::ONE + em2) * half, (F4::ONE - em2) * half);

@@ -663,7 +663,7 @@ fn product4<'a, M: Mad>(
         }
         let kd = k0 * F4::splat(d_nm);
         let a = m.q.re * kd;
-        let (sin_a, cos_a) = a.sin_cos();
+        let (sin_a, cos_a) = a.sin_cos_with::<M>();
         if m.real {
             // Lossless and propagating: cos δ and the admittances are real, i sin δ is
             // imaginary, so each complex product is two real ones.
@@ -673,7 +673,7 @@ fn product4<'a, M: Mad>(
         }
         // cosh b · e^(−b) and sinh b · e^(−b), with b = Im δ >= 0 (q is on the decaying branch)
         let b = m.q.im * kd;
-        let em = (-b).exp();
+        let em = (-b).exp_with::<M>();
         let em2 = em * em;
         log_scale += b;
         let (ch, sh) = ((F4::ONE + em2) * half, (F4::ONE - em2) * half);

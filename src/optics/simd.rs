@@ -75,8 +75,11 @@ impl F4 {
     /// up to about 1e9 and within rounding of the reduction (≈ |x|·1e-16 absolute) beyond, up
     /// to 2⁵¹ — far more than any phase the design's bounds allow. NaN or infinite lanes give
     /// NaN.
+    ///
+    /// Products and sums are formed through `M`: fused where the instruction set has it (fewer
+    /// instructions, and as accurate).
     #[inline(always)]
-    pub(crate) fn sin_cos(self) -> (Self, Self) {
+    pub(crate) fn sin_cos_with<M: Mad>(self) -> (Self, Self) {
         // π/2 in three parts; the first two have short mantissas so y·DP1, y·DP2 are exact for
         // moderate y (Cephes' DP1..DP3 for π/4, doubled).
         const DP1: f64 = 7.853_981_554_508_209_228_515_625E-1 * 2.0;
@@ -101,17 +104,25 @@ impl F4 {
         ];
         // Every step works on all four lanes at once, so each is one vector instruction.
         let xa = self.abs();
-        let rounded = xa * Self::splat(std::f64::consts::FRAC_2_PI) + Self::splat(ROUND);
+        let rounded = M::mad(
+            xa,
+            Self::splat(std::f64::consts::FRAC_2_PI),
+            Self::splat(ROUND),
+        );
         let q = rounded.bits();
         let y = rounded - Self::splat(ROUND);
-        let r = ((xa - y * Self::splat(DP1)) - y * Self::splat(DP2)) - y * Self::splat(DP3);
+        let r = M::mad(
+            -y,
+            Self::splat(DP3),
+            M::mad(-y, Self::splat(DP2), M::mad(-y, Self::splat(DP1), xa)),
+        );
         let r2 = r * r;
         let r4 = r2 * r2;
         // Estrin's scheme: shorter dependency chains than Horner's.
-        let ps = estrin(&S, r2, r4);
-        let pc = estrin(&C, r2, r4);
-        let s = r + r * r2 * ps;
-        let c = (Self::ONE - Self::splat(0.5) * r2) + r4 * pc;
+        let ps = estrin::<M>(&S, r2, r4);
+        let pc = estrin::<M>(&C, r2, r4);
+        let s = M::mad(r * r2, ps, r);
+        let c = M::mad(r4, pc, M::mad(Self::splat(-0.5), r2, Self::ONE));
         // Odd quadrants swap sine and cosine.
         let swap = q.map(|q| (q & 1).wrapping_neg());
         let (sin1, cos1) = (s.select(swap, c), c.select(swap, s));
@@ -126,6 +137,12 @@ impl F4 {
     /// normal number (x < −708.4) are flushed to 0.
     #[inline(always)]
     pub(crate) fn exp(self) -> Self {
+        self.exp_with::<Plain>()
+    }
+
+    /// [`F4::exp`] with its products and sums formed through `M`.
+    #[inline(always)]
+    pub(crate) fn exp_with<M: Mad>(self) -> Self {
         // ln 2 in two parts, the first with a short mantissa so r·LN2_HI is exact (fdlibm).
         const LN2_HI: f64 = 0.693_145_751_953_125;
         const LN2_LO: f64 = 1.428_606_820_309_417_232_12E-6;
@@ -144,9 +161,17 @@ impl F4 {
             1.0 / 479_001_600.0,
             1.0 / 6_227_020_800.0,
         ];
-        let rounded = self * Self::splat(std::f64::consts::LOG2_E) + Self::splat(ROUND);
+        let rounded = M::mad(
+            self,
+            Self::splat(std::f64::consts::LOG2_E),
+            Self::splat(ROUND),
+        );
         let r = rounded - Self::splat(ROUND);
-        let f = (self - r * Self::splat(LN2_HI)) - r * Self::splat(LN2_LO);
+        let f = M::mad(
+            -r,
+            Self::splat(LN2_LO),
+            M::mad(-r, Self::splat(LN2_HI), self),
+        );
         // Taylor series of e^f − 1 to f¹³ on |f| ≤ ln2/2: the first omitted term is below
         // 0.35¹⁴/14! ≈ 4e-18.
         let f2 = f * f;
@@ -154,10 +179,11 @@ impl F4 {
         let f8 = f4 * f4;
         let p = |k: usize| Self::splat(P[k]);
         // e^f − 1 = f + f²·(P0 + P1 f + … + P11 f¹¹)
-        let lo = (p(0) + p(1) * f) + (p(2) + p(3) * f) * f2;
-        let mid = (p(4) + p(5) * f) + (p(6) + p(7) * f) * f2;
-        let hi = (p(8) + p(9) * f) + (p(10) + p(11) * f) * f2;
-        let z = Self::ONE + (f + f2 * (lo + mid * f4 + hi * f8));
+        let pair = |k: usize| M::mad(p(k + 1), f, p(k));
+        let lo = M::mad(pair(2), f2, pair(0));
+        let mid = M::mad(pair(6), f2, pair(4));
+        let hi = M::mad(pair(10), f2, pair(8));
+        let z = Self::ONE + M::mad(f2, M::mad(hi, f8, M::mad(mid, f4, lo)), f);
         // 2^r from the exponent bits: the low bits of `rounded` hold r (two's complement).
         let pow2 = Self(
             rounded
@@ -305,9 +331,9 @@ const SIGN: u64 = 1 << 63;
 
 /// p₀ + p₁z + … + p₅z⁵ with z = `z`, `z2` = z², by Estrin's scheme.
 #[inline(always)]
-fn estrin(p: &[f64; 6], z: F4, z2: F4) -> F4 {
-    let c = |k: usize| F4::splat(p[k]);
-    (c(0) + c(1) * z) + (c(2) + c(3) * z) * z2 + (c(4) + c(5) * z) * (z2 * z2)
+fn estrin<M: Mad>(p: &[f64; 6], z: F4, z2: F4) -> F4 {
+    let pair = |k: usize| M::mad(F4::splat(p[k + 1]), z, F4::splat(p[k]));
+    M::mad(pair(4), z2 * z2, M::mad(pair(2), z2, pair(0)))
 }
 
 /// How a kernel forms a·b + c: in one fused, once-rounded instruction where the instruction
@@ -393,7 +419,13 @@ mod tests {
         let mut x = -3.0e4_f64;
         while x < 3.0e4 {
             let v = F4([x, x * 0.37 + 0.1, -x * 1e-3, x * 31.0]);
-            let (s, c) = v.sin_cos();
+            let (s, c) = v.sin_cos_with::<Plain>();
+            // The fused forms within rounding of the plain ones.
+            let (fs, fc) = v.sin_cos_with::<Fused>();
+            for i in 0..4 {
+                let tol = 4e-16 * (1.0 + v.0[i].abs());
+                assert!((fs.0[i] - s.0[i]).abs() <= tol && (fc.0[i] - c.0[i]).abs() <= tol);
+            }
             for i in 0..4 {
                 let (es, ec) = v.0[i].sin_cos();
                 // Absolute error grows with |x| through the reduction (≈ |x|·ε).
@@ -403,7 +435,9 @@ mod tests {
             }
             let e = F4([-x.abs() * 0.02, -x.abs() * 1e-4, x * 1e-5, -1e-9]);
             let got = e.exp();
+            let fused = e.exp_with::<Fused>();
             for i in 0..4 {
+                assert!((fused.0[i] - got.0[i]).abs() <= 4e-16 * got.0[i]);
                 let want = e.0[i].exp();
                 worst_exp = worst_exp.max((got.0[i] - want).abs() / (want * 1e-15));
             }
@@ -418,7 +452,7 @@ mod tests {
             "{t:?}"
         );
         assert!((t.0[3] / (-708.0f64).exp() - 1.0).abs() < 1e-15, "{t:?}");
-        let (s, c) = F4([f64::NAN, f64::INFINITY, 0.0, -0.0]).sin_cos();
+        let (s, c) = F4([f64::NAN, f64::INFINITY, 0.0, -0.0]).sin_cos_with::<Plain>();
         assert!(s.0[0].is_nan() && c.0[1].is_nan(), "{s:?} {c:?}");
         assert!(
             s.0[2] == 0.0 && (c.0[2] - 1.0).abs() < 1e-16 && (c.0[3] - 1.0).abs() < 1e-16,
