@@ -73,6 +73,20 @@ impl Gradient {
     /// Sizes every derivative list to `n` layers (the callers then write every entry, so
     /// old values are not cleared).
     pub(super) fn resize(&mut self, n: usize) {
+        self.resize_intensities(n);
+        for v in [
+            &mut self.d_amp_r_s,
+            &mut self.d_amp_r_p,
+            &mut self.d_amp_t_s,
+            &mut self.d_amp_t_p,
+        ] {
+            v.resize(n, Complex64::default());
+        }
+    }
+
+    /// Sizes the derivative lists of R and T to `n` layers and empties the amplitudes' (for a
+    /// caller that wants only R and T: emptied once, they cost nothing on the next call).
+    pub(super) fn resize_intensities(&mut self, n: usize) {
         for v in [
             &mut self.d_r_s,
             &mut self.d_r_p,
@@ -87,7 +101,7 @@ impl Gradient {
             &mut self.d_amp_t_s,
             &mut self.d_amp_t_p,
         ] {
-            v.resize(n, Complex64::default());
+            v.clear();
         }
     }
 

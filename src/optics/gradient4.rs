@@ -14,7 +14,7 @@
 use num_complex::Complex64;
 
 use super::gradient::{Gradient, Pass, finish_gradient};
-use super::lanes::{Cx4, Tilted4, coherent4, inv, rotate};
+use super::lanes::{Cx4, Finished4, FrontEnds4, Tilted4, coherent4, finish4, inv, rotate};
 use super::simd::{self, F4, Fused, Level, Mad, Plain};
 use super::tmm::{BIG, Coherent, RENORM_EVERY, SMALL, Tilted, finish};
 use super::{Media4, StackAt};
@@ -96,7 +96,10 @@ type Ends<'a> = ([&'a Tilted; 4], [&'a Tilted; 4]);
 
 /// One coherent problem forward and backward, four points at once. `reversed` walks the
 /// layers from the last (the coating seen from inside the substrate); derivatives land at
-/// deposition indices in each lane's [`Pass`].
+/// deposition indices in each lane's [`Pass`], or, with `direct`, straight in the points'
+/// gradients. With `lanes_ends` (light from the front onto a semi-infinite substrate) the
+/// results are finished in lanes too. The whole pass is one kernel in the chosen instruction
+/// set.
 #[allow(clippy::too_many_arguments)]
 fn pass4(
     level: Level,
@@ -109,7 +112,8 @@ fn pass4(
     below: &mut Vec<([[Cx4; 2]; 2], [F4; 2])>,
     terms: &mut Vec<Terms>,
     out: &mut [Pass; 4],
-    mut direct: Option<(&mut [Gradient; 4], bool)>,
+    direct: Option<(&mut [Gradient; 4], bool)>,
+    lanes_ends: Option<&FrontEnds4>,
 ) {
     let n = layers.len();
     // Every entry is written by the backward pass, so the buffers are only sized, not cleared.
@@ -120,17 +124,83 @@ fn pass4(
             }
         }
     }
-    let eta_sub = [
-        Cx4::gather(substrate.map(|t| t.eta_s)),
-        Cx4::gather(substrate.map(|t| t.eta_p)),
-    ];
-    let eta0 = [
-        Cx4::gather(incident.map(|t| t.eta_s)),
-        Cx4::gather(incident.map(|t| t.eta_p)),
-    ];
-    let (v, log_scale, norm) = simd::run_at(
+    simd::run_at(
         level,
-        Forward {
+        PassKernel {
+            incident,
+            substrate,
+            mats,
+            layers,
+            reversed,
+            k0,
+            trig,
+            below,
+            terms,
+            out,
+            direct,
+            lanes_ends,
+        },
+    );
+}
+
+/// [`pass4`]'s work as one operation for [`simd::run_at`].
+struct PassKernel<'a> {
+    incident: [&'a Tilted; 4],
+    substrate: [&'a Tilted; 4],
+    mats: &'a [Tilted4],
+    layers: &'a [(usize, f64)],
+    reversed: bool,
+    k0: F4,
+    trig: &'a mut Vec<[Cx4; 3]>,
+    below: &'a mut Vec<([[Cx4; 2]; 2], [F4; 2])>,
+    terms: &'a mut Vec<Terms>,
+    out: &'a mut [Pass; 4],
+    direct: Option<(&'a mut [Gradient; 4], bool)>,
+    lanes_ends: Option<&'a FrontEnds4>,
+}
+
+impl pulp::WithSimd for PassKernel<'_> {
+    type Output = ();
+
+    #[inline(always)]
+    fn with_simd<S: pulp::Simd>(self, _simd: S) {
+        // Direct calls (not through a function pointer), so each is inlined here and
+        // compiled for this instruction set.
+        if S::IS_SCALAR {
+            self.run::<Plain>();
+        } else {
+            self.run::<Fused>();
+        }
+    }
+}
+
+impl PassKernel<'_> {
+    #[inline(always)]
+    fn run<M: Mad>(self) {
+        let Self {
+            incident,
+            substrate,
+            mats,
+            layers,
+            reversed,
+            k0,
+            trig,
+            below,
+            terms,
+            out,
+            mut direct,
+            lanes_ends,
+        } = self;
+        let n = layers.len();
+        let eta_sub = [
+            Cx4::gather(substrate.map(|t| t.eta_s)),
+            Cx4::gather(substrate.map(|t| t.eta_p)),
+        ];
+        let eta0 = [
+            Cx4::gather(incident.map(|t| t.eta_s)),
+            Cx4::gather(incident.map(|t| t.eta_p)),
+        ];
+        let (v, log_scale, norm) = forward::<M>(Forward {
             mats,
             layers,
             reversed,
@@ -138,9 +208,91 @@ fn pass4(
             eta_sub,
             trig,
             below,
-        },
-    );
+        });
+        let finished = lanes_ends.map(|e| {
+            let one = Cx4 {
+                re: F4::ONE,
+                im: F4::ZERO,
+            };
+            [
+                finish4(
+                    e.eta0[0],
+                    v[0][0],
+                    v[0][1],
+                    e.eta_sub[0],
+                    one,
+                    log_scale + norm[0],
+                ),
+                finish4(
+                    e.eta0[1],
+                    v[1][0],
+                    v[1][1],
+                    e.eta_sub[1],
+                    e.t_factor_p,
+                    log_scale + norm[1],
+                ),
+            ]
+        });
+        finish_each(
+            out,
+            finished.as_ref(),
+            incident,
+            substrate,
+            v,
+            log_scale,
+            norm,
+        );
+        let (sink, results) = match direct.take() {
+            Some((grads, amplitudes)) => {
+                let results = [0, 1].map(|pol| res4(pol, finished.as_ref(), out));
+                for (g, lane) in grads.iter_mut().zip(out.iter()) {
+                    if amplitudes {
+                        g.resize(n);
+                    } else {
+                        g.resize_intensities(n);
+                    }
+                    g.response = lane.result.response();
+                }
+                (Sink::Direct(grads, amplitudes), Some(results))
+            }
+            None => (Sink::Pass(out), None),
+        };
+        backward::<M>(Backward {
+            mats,
+            layers,
+            reversed,
+            trig,
+            below,
+            eta0,
+            v,
+            norm,
+            results,
+            terms,
+            sink,
+        });
+    }
+}
+
+/// Each lane's results: from `finished` when the pass finished them in lanes, else one lane
+/// at a time from the final [B; C] (`v`) and its scales.
+#[inline(always)]
+fn finish_each(
+    out: &mut [Pass; 4],
+    finished: Option<&[Finished4; 2]>,
+    incident: [&Tilted; 4],
+    substrate: [&Tilted; 4],
+    v: [[Cx4; 2]; 2],
+    log_scale: F4,
+    norm: [F4; 2],
+) {
     for (i, lane) in out.iter_mut().enumerate() {
+        if let Some([s, p]) = finished {
+            lane.result = Coherent {
+                s: s.lane(i),
+                p: p.lane(i),
+            };
+            continue;
+        }
         let (inc, sub) = (incident[i], substrate[i]);
         let cos_ratio = (inc.q / inc.n) / (sub.q / sub.n);
         lane.result = Coherent {
@@ -162,53 +314,34 @@ fn pass4(
             ),
         };
     }
-    let (sink, results) = match direct.take() {
-        Some((grads, amplitudes)) => {
-            let results = [0, 1].map(|pol| {
-                let amp = |i: usize| {
-                    let c = &out[i].result;
-                    if pol == 0 { c.s } else { c.p }
-                };
-                Res4 {
-                    r: Cx4::gather(std::array::from_fn(|i| amp(i).r)),
-                    t: Cx4::gather(std::array::from_fn(|i| amp(i).t)),
-                    transmittance: F4(std::array::from_fn(|i| amp(i).transmittance)),
-                }
-            });
-            for (g, lane) in grads.iter_mut().zip(out.iter()) {
-                g.resize(n);
-                if !amplitudes {
-                    for v in [
-                        &mut g.d_amp_r_s,
-                        &mut g.d_amp_r_p,
-                        &mut g.d_amp_t_s,
-                        &mut g.d_amp_t_p,
-                    ] {
-                        v.clear();
-                    }
-                }
-                g.response = lane.result.response();
-            }
-            (Sink::Direct(grads, amplitudes), Some(results))
-        }
-        None => (Sink::Pass(out), None),
+}
+
+/// Polarisation `pol`'s results in lanes (0 for s): taken from `finished` when it holds them
+/// in lanes, else gathered from each lane's result.
+#[inline(always)]
+fn res4(pol: usize, finished: Option<&[Finished4; 2]>, out: &[Pass; 4]) -> Res4 {
+    if let Some(Finished4::Lanes {
+        r,
+        t,
+        transmittance,
+        ..
+    }) = finished.map(|f| &f[pol])
+    {
+        return Res4 {
+            r: *r,
+            t: *t,
+            transmittance: *transmittance,
+        };
+    }
+    let amp = |i: usize| {
+        let c = &out[i].result;
+        if pol == 0 { c.s } else { c.p }
     };
-    simd::run_at(
-        level,
-        Backward {
-            mats,
-            layers,
-            reversed,
-            trig,
-            below,
-            eta0,
-            v,
-            norm,
-            results,
-            terms,
-        },
-    );
-    sink.spread(terms);
+    Res4 {
+        r: Cx4::gather(std::array::from_fn(|i| amp(i).r)),
+        t: Cx4::gather(std::array::from_fn(|i| amp(i).t)),
+        transmittance: F4(std::array::from_fn(|i| amp(i).transmittance)),
+    }
 }
 
 /// One polarisation's results in four lanes: what the derivatives of R, T and t need.
@@ -234,7 +367,9 @@ enum Sink<'a> {
 }
 
 impl Sink<'_> {
-    /// Spreads the layers' `terms` (in lanes) over the four points.
+    /// Spreads the layers' `terms` (in lanes) over the four points. Always inlined, so it
+    /// runs in the backward pass's instruction set.
+    #[inline(always)]
     fn spread(self, terms: &[Terms]) {
         match self {
             Self::Pass(out) => {
@@ -250,14 +385,38 @@ impl Sink<'_> {
                 }
             }
             Self::Direct(grads, false) => {
+                // Four layers at a time: four lanes of four layers, transposed into four
+                // points' runs of four.
+                let whole = terms.len() - terms.len() % 4;
+                for k in (0..whole).step_by(4) {
+                    #[allow(
+                        clippy::needless_range_loop,
+                        reason = "pol picks both the lanes and each point's columns"
+                    )]
+                    for pol in 0..2 {
+                        let rt: [Cx4; 4] = std::array::from_fn(|j| terms[k + j][pol][2]);
+                        for (i, g) in grads.iter_mut().enumerate() {
+                            let (d_r, d_t) = if pol == 0 {
+                                (&mut g.d_r_s, &mut g.d_t_s)
+                            } else {
+                                (&mut g.d_r_p, &mut g.d_t_p)
+                            };
+                            d_r[k..k + 4].copy_from_slice(&rt.map(|z| z.re.0[i]));
+                            d_t[k..k + 4].copy_from_slice(&rt.map(|z| z.im.0[i]));
+                        }
+                    }
+                }
                 for (i, g) in grads.iter_mut().enumerate() {
                     for (pol, (d_r, d_t)) in
                         [(&mut g.d_r_s, &mut g.d_t_s), (&mut g.d_r_p, &mut g.d_t_p)]
                             .into_iter()
                             .enumerate()
                     {
-                        for ((term, d_r), d_t) in
-                            terms.iter().zip(d_r.iter_mut()).zip(d_t.iter_mut())
+                        for ((term, d_r), d_t) in terms
+                            .iter()
+                            .zip(d_r.iter_mut())
+                            .zip(d_t.iter_mut())
+                            .skip(whole)
                         {
                             let rt = &term[pol][2];
                             *d_r = rt.re.0[i];
@@ -306,7 +465,7 @@ impl Sink<'_> {
     }
 }
 
-/// [`forward`] as an operation for [`simd::run_at`].
+/// What [`forward`] works on.
 struct Forward<'a> {
     mats: &'a [Tilted4],
     layers: &'a [(usize, f64)],
@@ -317,22 +476,7 @@ struct Forward<'a> {
     below: &'a mut Vec<([[Cx4; 2]; 2], [F4; 2])>,
 }
 
-impl pulp::WithSimd for Forward<'_> {
-    type Output = ([[Cx4; 2]; 2], F4, [F4; 2]);
-
-    #[inline(always)]
-    fn with_simd<S: pulp::Simd>(self, _simd: S) -> Self::Output {
-        // Direct calls (not through a function pointer), so each is inlined here and
-        // compiled for this instruction set.
-        if S::IS_SCALAR {
-            forward::<Plain>(self)
-        } else {
-            forward::<Fused>(self)
-        }
-    }
-}
-
-/// [`backward`] as an operation for [`simd::run_at`].
+/// What [`backward`] works on.
 struct Backward<'a> {
     mats: &'a [Tilted4],
     layers: &'a [(usize, f64)],
@@ -344,19 +488,8 @@ struct Backward<'a> {
     norm: [F4; 2],
     results: Option<[Res4; 2]>,
     terms: &'a mut Vec<Terms>,
-}
-
-impl pulp::WithSimd for Backward<'_> {
-    type Output = ();
-
-    #[inline(always)]
-    fn with_simd<S: pulp::Simd>(self, _simd: S) {
-        if S::IS_SCALAR {
-            backward::<Plain>(self);
-        } else {
-            backward::<Fused>(self);
-        }
-    }
+    /// Where the terms go once the pass is done.
+    sink: Sink<'a>,
 }
 
 /// The forward pass: keeps [B; C] below each layer in `below` and the layer's trigonometry in
@@ -467,27 +600,28 @@ fn backward<M: Mad>(
         norm,
         results,
         terms,
+        sink,
     }: Backward<'_>,
 ) {
     let n = layers.len();
-    let zero = Cx4 {
-        re: F4::ZERO,
-        im: F4::ZERO,
-    };
-    terms.resize(n, [[zero; 3]; 2]);
-    let one = Cx4 {
-        re: F4::ONE,
-        im: F4::ZERO,
-    };
+    terms.resize(n, [[Cx4::ZERO; 3]; 2]);
+    let amplitudes = !matches!(sink, Sink::Direct(_, false));
     for pol in 0..2 {
         let [b, c] = v[pol];
-        let den = eta0[pol].mul_m::<M>(b);
-        let den = add(den, c);
+        let den = add(eta0[pol].mul_m::<M>(b), c);
         let inv_den = inv(den);
         let dr_factor = scale(
             eta0[pol].mul_m::<M>(inv_den.mul_m::<M>(inv_den)),
             F4::splat(2.0),
         );
+        // Only R's and T's derivatives wanted: dR = 2 Re(r* dr) = Re(a·(−i k₀q)·s₁) with
+        // a = 2 r* · dr_factor, and dT = −2T Re(dD/D) = Re(b·(−i k₀q)·s₂) with
+        // b = −2T / D, both constant over the layers: they are folded into the rows at the
+        // start (the rows carry them down linearly), and dr and dD are never formed.
+        let rt_factors = results
+            .as_ref()
+            .filter(|_| !amplitudes)
+            .map(|res| rt_factors::<M>(&res[pol], dr_factor, inv_den));
         // Row vectors and the logs of their scales: the true rows are w·e^f.
         let mut w1 = [
             c,
@@ -497,8 +631,12 @@ fn backward<M: Mad>(
             },
         ];
         let mut f1 = norm[pol];
-        let mut w2 = [eta0[pol], one];
+        let mut w2 = [eta0[pol], Cx4::ONE];
         let mut f2 = F4::ZERO;
+        if let Some((a, b)) = &rt_factors {
+            w1 = w1.map(|z| a.mul_m::<M>(z));
+            w2 = w2.map(|z| b.mul_m::<M>(z));
+        }
         // Whether any scale is in play (the forward pass or the rows were rescaled).
         let mut scaled = norm[pol].0.iter().any(|&x| x != 0.0);
         for (count, p) in (0..n).rev().enumerate() {
@@ -517,24 +655,7 @@ fn backward<M: Mad>(
             let ([bb, cb], below_norm) = (below[p].0[pol], below[p].1[pol]);
             // w ← w·M first: with ∂M/∂d = k₀q·M·J, J = [[0, −i/η], [−iη, 0]], the layer's
             // term w·(∂M/∂d)·v is k₀q·(w·M)·(J·v), and J·v = −i·[C/η; η·B].
-            if m.real {
-                let (c, s) = (cd.re, is.im);
-                // [w0 cos δ − i η sin δ w1, w1 cos δ − i sin δ w0/η]
-                let (u, w) = (s * eta.re, s * inv_eta.re);
-                w1 = rotate::<M>(w1, c, u, w);
-                w2 = rotate::<M>(w2, c, u, w);
-            } else {
-                let (x, y) = (eta.mul_m::<M>(is), is.mul_m::<M>(inv_eta));
-                // No closure here: everything in the kernel must be inlined into it.
-                w1 = [
-                    w1[0].mul_sub::<M>(cd, w1[1], x),
-                    w1[1].mul_sub::<M>(cd, w1[0], y),
-                ];
-                w2 = [
-                    w2[0].mul_sub::<M>(cd, w2[1], x),
-                    w2[1].mul_sub::<M>(cd, w2[0], y),
-                ];
-            }
+            [w1, w2] = rows_through::<M>([w1, w2], m.real, cd, is, eta, inv_eta);
             let (j0, j1) = if m.real {
                 (scale(cb, inv_eta.re), scale(bb, eta.re))
             } else {
@@ -549,16 +670,29 @@ fn backward<M: Mad>(
                 re: kq.im,
                 im: -kq.re,
             };
+            let rescale = scaled || below_norm.0.iter().any(|&x| x != 0.0);
+            if rt_factors.is_some() {
+                // Re(−i k₀q · s)
+                let mut d_r = M::mad(minus_i_kq.re, s1.re, -(minus_i_kq.im * s1.im));
+                let mut d_t = M::mad(minus_i_kq.re, s2.re, -(minus_i_kq.im * s2.im));
+                if rescale {
+                    d_r = d_r * (f1 + below_norm - norm[pol] - norm[pol]).exp();
+                    d_t = d_t * (f2 + below_norm - norm[pol]).exp();
+                }
+                // Only the slot the spread reads.
+                terms[k][pol][2] = Cx4 { re: d_r, im: d_t };
+                continue;
+            }
             let mut dr = dr_factor.mul_m::<M>(minus_i_kq).mul_m::<M>(s1);
             let mut dd = inv_den.mul_m::<M>(minus_i_kq).mul_m::<M>(s2);
-            if scaled || below_norm.0.iter().any(|&x| x != 0.0) {
+            if rescale {
                 dr = scale(dr, (f1 + below_norm - norm[pol] - norm[pol]).exp());
                 dd = scale(dd, (f2 + below_norm - norm[pol]).exp());
             }
             // Kept in lanes here and spread over the points afterwards: writing single lanes
             // from inside the loop would have the compiler shuffle every product.
             terms[k][pol] = match &results {
-                None => [dr, dd, zero],
+                None => [dr, dd, Cx4::ZERO],
                 Some(res) => {
                     let res = &res[pol];
                     let d_r = F4::splat(2.0) * M::mad(res.r.re, dr.re, res.r.im * dr.im);
@@ -573,6 +707,52 @@ fn backward<M: Mad>(
             };
         }
     }
+    sink.spread(terms);
+}
+
+/// The factors a = 2 r*·`dr_factor` and b = −2T·`inv_den` that turn the backward pass's
+/// contractions into the derivatives of R and T directly.
+#[inline(always)]
+fn rt_factors<M: Mad>(res: &Res4, dr_factor: Cx4, inv_den: Cx4) -> (Cx4, Cx4) {
+    let conj_r = Cx4 {
+        re: res.r.re,
+        im: -res.r.im,
+    };
+    (
+        scale(conj_r.mul_m::<M>(dr_factor), F4::splat(2.0)),
+        scale(inv_den, F4::splat(-2.0) * res.transmittance),
+    )
+}
+
+/// Both adjoint rows times one layer's matrix (cos δ = `cd`, i sin δ = `is`, admittance
+/// `eta`): real products only when the layer is lossless (`real`).
+#[inline(always)]
+fn rows_through<M: Mad>(
+    [w1, w2]: [[Cx4; 2]; 2],
+    real: bool,
+    cd: Cx4,
+    is: Cx4,
+    eta: Cx4,
+    inv_eta: Cx4,
+) -> [[Cx4; 2]; 2] {
+    if real {
+        let (c, s) = (cd.re, is.im);
+        // [w0 cos δ − i η sin δ w1, w1 cos δ − i sin δ w0/η]
+        let (u, w) = (s * eta.re, s * inv_eta.re);
+        return [rotate::<M>(w1, c, u, w), rotate::<M>(w2, c, u, w)];
+    }
+    let (x, y) = (eta.mul_m::<M>(is), is.mul_m::<M>(inv_eta));
+    // No closure here: everything in the kernel must be inlined into it.
+    [
+        [
+            w1[0].mul_sub::<M>(cd, w1[1], x),
+            w1[1].mul_sub::<M>(cd, w1[0], y),
+        ],
+        [
+            w2[0].mul_sub::<M>(cd, w2[1], x),
+            w2[1].mul_sub::<M>(cd, w2[0], y),
+        ],
+    ]
 }
 
 /// [`super::solve_gradient`] for four points (light from the front): `media` from
@@ -632,6 +812,7 @@ pub(crate) fn solve_gradient4_at(
         terms,
         front,
         semi_infinite.then_some((&mut *out, amplitudes)),
+        media.front.as_ref(),
     );
     if semi_infinite {
         return;
@@ -647,6 +828,7 @@ pub(crate) fn solve_gradient4_at(
         below,
         terms,
         inside,
+        None,
         None,
     );
     // The back face (its coating or the bare surface) seen from inside the substrate.
@@ -781,7 +963,7 @@ mod tests {
     /// Asking for R's and T's derivatives only gives the same numbers, bit for bit, and
     /// leaves the amplitude lists empty; a second full call after it fills them again.
     #[test]
-    fn intensities_only_gives_the_same_derivatives_of_r_and_t() {
+    fn intensities_only_gives_the_derivatives_of_r_and_t_to_rounding() {
         let materials = [Complex64::new(2.3, 0.02), Complex64::new(1.46, 0.0)];
         let layers: Vec<(usize, f64)> = (0..12).map(|i| (i % 2, 40.0 + 9.0 * i as f64)).collect();
         let stack = StackAt {
@@ -815,7 +997,12 @@ mod tests {
                 (&a.d_t_p, &b.d_t_p),
             ] {
                 assert_eq!(x.len(), layers.len());
-                assert!(x.iter().zip(y).all(|(x, y)| x.to_bits() == y.to_bits()));
+                // The same quantities by a shorter product: equal to rounding.
+                let scale = x.iter().fold(0.0_f64, |m, v| m.max(v.abs()));
+                assert!(
+                    x.iter().zip(y).all(|(x, y)| (x - y).abs() <= 1e-14 * scale),
+                    "{x:?} vs {y:?}"
+                );
             }
             assert!(b.d_amp_r_s.is_empty() && b.d_amp_t_p.is_empty());
             assert_eq!(a.response, b.response);

@@ -26,6 +26,15 @@ pub(crate) struct Cx4 {
 }
 
 impl Cx4 {
+    pub(crate) const ZERO: Self = Self {
+        re: F4::ZERO,
+        im: F4::ZERO,
+    };
+    pub(crate) const ONE: Self = Self {
+        re: F4::ONE,
+        im: F4::ZERO,
+    };
+
     #[inline(always)]
     pub(crate) fn gather(z: [Complex64; 4]) -> Self {
         Self {
@@ -318,11 +327,11 @@ impl pulp::WithSimd for FrontWith<'_> {
 pub(crate) struct FrontEnds4 {
     /// The incident medium's admittances (s, p), real: it is transparent and the angle below
     /// 90°, so q₀ = n₀ cos θ₀ is real.
-    eta0: [F4; 2],
+    pub(crate) eta0: [F4; 2],
     /// The substrate's admittances (s, p).
-    eta_sub: [Cx4; 2],
+    pub(crate) eta_sub: [Cx4; 2],
     /// t_p's factor cos θ₀ / cos θ_sub = (q₀ / n₀) · (N_sub / q_sub).
-    t_factor_p: Cx4,
+    pub(crate) t_factor_p: Cx4,
 }
 
 impl FrontEnds4 {
@@ -508,7 +517,7 @@ fn store(out: &mut ColumnsMut<'_>, first: usize, valid: usize, s: &Finished4, p:
 }
 
 /// R, T, A and amplitudes of one polarisation in four lanes, or what to finish lane by lane.
-enum Finished4 {
+pub(crate) enum Finished4 {
     /// Every lane done in lanes.
     Lanes {
         r: Cx4,
@@ -523,7 +532,7 @@ enum Finished4 {
 
 impl Finished4 {
     #[inline(always)]
-    fn lane(&self, i: usize) -> Amplitudes {
+    pub(crate) fn lane(&self, i: usize) -> Amplitudes {
         match self {
             Self::Lanes {
                 r,
@@ -547,7 +556,14 @@ impl Finished4 {
 /// formulas, in lanes, when every lane's scale e^(−`log_scale`) and |η₀B + C|² are far from
 /// overflow and underflow (all but extreme stacks); otherwise lane by lane through `finish`.
 #[inline(always)]
-fn finish4(eta0: F4, b: Cx4, c: Cx4, eta_sub: Cx4, t_factor: Cx4, log_scale: F4) -> Finished4 {
+pub(crate) fn finish4(
+    eta0: F4,
+    b: Cx4,
+    c: Cx4,
+    eta_sub: Cx4,
+    t_factor: Cx4,
+    log_scale: F4,
+) -> Finished4 {
     let den = Cx4 {
         re: eta0 * b.re + c.re,
         im: eta0 * b.im + c.im,
