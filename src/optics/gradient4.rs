@@ -563,10 +563,7 @@ fn forward<M: Mad>(
         };
         below[p] = (v, norm);
         trig[p] = [cd, is, scale(m.q, k0)];
-        for (pol, (eta, inv_eta)) in [(m.eta_s, m.inv_eta_s), (m.eta_p, m.inv_eta_p)]
-            .into_iter()
-            .enumerate()
-        {
+        for (pol, (eta, inv_eta)) in m.eta.into_iter().zip(m.inv_eta).enumerate() {
             let [b, c] = v[pol];
             v[pol] = if m.real {
                 // cos δ and the admittances real, i sin δ imaginary: real products only.
@@ -647,11 +644,7 @@ fn backward<M: Mad>(
             let [cd, is, kq] = trig[p];
             let k = if reversed { n - 1 - p } else { p };
             let m = &mats[layers[k].0];
-            let (eta, inv_eta) = if pol == 0 {
-                (m.eta_s, m.inv_eta_s)
-            } else {
-                (m.eta_p, m.inv_eta_p)
-            };
+            let (eta, inv_eta) = (m.eta[pol], m.inv_eta[pol]);
             let ([bb, cb], below_norm) = (below[p].0[pol], below[p].1[pol]);
             // w ← w·M first: with ∂M/∂d = k₀q·M·J, J = [[0, −i/η], [−iη, 0]], the layer's
             // term w·(∂M/∂d)·v is k₀q·(w·M)·(J·v), and J·v = −i·[C/η; η·B].

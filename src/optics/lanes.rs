@@ -124,10 +124,11 @@ fn rescale4(b: &mut Cx4, c: &mut Cx4, log_norm: &mut F4, m: F4) {
 #[derive(Clone, Copy, Debug)]
 pub(crate) struct Tilted4 {
     pub(crate) q: Cx4,
-    pub(crate) eta_s: Cx4,
-    pub(crate) inv_eta_s: Cx4,
-    pub(crate) eta_p: Cx4,
-    pub(crate) inv_eta_p: Cx4,
+    /// Admittances η (s, p): indexed by polarisation, so a loop over both picks one by its
+    /// address (a choice between two fields had the compiler load them lane by lane).
+    pub(crate) eta: [Cx4; 2],
+    /// 1/η (s, p).
+    pub(crate) inv_eta: [Cx4; 2],
     /// q is real in every lane: the layer neither absorbs nor is evanescent (no exp needed).
     pub(crate) real: bool,
 }
@@ -169,10 +170,8 @@ impl Tilted4 {
         let inv_n2 = inv(n2);
         Self {
             q,
-            eta_s: q,
-            inv_eta_s: inv_q,
-            eta_p: n2.mul(inv_q),
-            inv_eta_p: q.mul(inv_n2),
+            eta: [q, n2.mul(inv_q)],
+            inv_eta: [inv_q, q.mul(inv_n2)],
             real: q.im.0.iter().all(|&x| x == 0.0),
         }
     }
@@ -182,10 +181,14 @@ impl Tilted4 {
     pub(crate) fn gather(t: [&Tilted; 4]) -> Self {
         Self {
             q: Cx4::gather(t.map(|t| t.q)),
-            eta_s: Cx4::gather(t.map(|t| t.eta_s)),
-            inv_eta_s: Cx4::gather(t.map(|t| t.inv_eta_s)),
-            eta_p: Cx4::gather(t.map(|t| t.eta_p)),
-            inv_eta_p: Cx4::gather(t.map(|t| t.inv_eta_p)),
+            eta: [
+                Cx4::gather(t.map(|t| t.eta_s)),
+                Cx4::gather(t.map(|t| t.eta_p)),
+            ],
+            inv_eta: [
+                Cx4::gather(t.map(|t| t.inv_eta_s)),
+                Cx4::gather(t.map(|t| t.inv_eta_p)),
+            ],
             real: t.iter().all(|t| t.q.im == 0.0),
         }
     }
@@ -344,10 +347,10 @@ impl FrontEnds4 {
         let q0 = (n0 * n0 - snell * snell).map(f64::sqrt);
         let eta0_p = (n0 * n0).zip(q0, |a, b| a / b);
         let cos0 = q0.zip(n0, |a, b| a / b);
-        let ratio = Cx4::gather(substrate).mul(sub.inv_eta_s);
+        let ratio = Cx4::gather(substrate).mul(sub.inv_eta[0]);
         Self {
             eta0: [q0, eta0_p],
-            eta_sub: [sub.eta_s, sub.eta_p],
+            eta_sub: sub.eta,
             t_factor_p: Cx4 {
                 re: ratio.re * cos0,
                 im: ratio.im * cos0,
@@ -683,8 +686,18 @@ fn product4<'a, M: Mad>(
         if m.real {
             // Lossless and propagating: cos δ and the admittances are real, i sin δ is
             // imaginary, so each complex product is two real ones.
-            [bs, cs] = rotate::<M>([bs, cs], cos_a, sin_a * m.inv_eta_s.re, sin_a * m.eta_s.re);
-            [bp, cp] = rotate::<M>([bp, cp], cos_a, sin_a * m.inv_eta_p.re, sin_a * m.eta_p.re);
+            [bs, cs] = rotate::<M>(
+                [bs, cs],
+                cos_a,
+                sin_a * m.inv_eta[0].re,
+                sin_a * m.eta[0].re,
+            );
+            [bp, cp] = rotate::<M>(
+                [bp, cp],
+                cos_a,
+                sin_a * m.inv_eta[1].re,
+                sin_a * m.eta[1].re,
+            );
             continue;
         }
         // cosh b · e^(−b) and sinh b · e^(−b), with b = Im δ >= 0 (q is on the decaying branch)
@@ -702,12 +715,18 @@ fn product4<'a, M: Mad>(
             re: -(cos_a * sh),
             im: sin_a * ch,
         };
-        let (xs, ys) = (i_sin_d.mul_m::<M>(m.inv_eta_s), i_sin_d.mul_m::<M>(m.eta_s));
+        let (xs, ys) = (
+            i_sin_d.mul_m::<M>(m.inv_eta[0]),
+            i_sin_d.mul_m::<M>(m.eta[0]),
+        );
         (bs, cs) = (
             cos_d.mul_sub::<M>(bs, xs, cs),
             cos_d.mul_sub::<M>(cs, ys, bs),
         );
-        let (xp, yp) = (i_sin_d.mul_m::<M>(m.inv_eta_p), i_sin_d.mul_m::<M>(m.eta_p));
+        let (xp, yp) = (
+            i_sin_d.mul_m::<M>(m.inv_eta[1]),
+            i_sin_d.mul_m::<M>(m.eta[1]),
+        );
         (bp, cp) = (
             cos_d.mul_sub::<M>(bp, xp, cp),
             cos_d.mul_sub::<M>(cp, yp, bp),
@@ -845,10 +864,10 @@ mod tests {
                 let one = Tilted::new(n[i], snell[i]);
                 let lanes = [
                     four.q.lane(i),
-                    four.eta_s.lane(i),
-                    four.eta_p.lane(i),
-                    four.inv_eta_s.lane(i),
-                    four.inv_eta_p.lane(i),
+                    four.eta[0].lane(i),
+                    four.eta[1].lane(i),
+                    four.inv_eta[0].lane(i),
+                    four.inv_eta[1].lane(i),
                 ];
                 for (k, (a, b)) in lanes.iter().zip(fields(&one)).enumerate() {
                     assert!(
