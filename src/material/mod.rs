@@ -154,6 +154,18 @@ impl Material {
         out: &mut [Complex64],
     ) -> Result<(), (usize, MaterialError)> {
         self.model.indices_at(wavelengths_nm, out);
+        // The quick test first, over all of them without stopping (so it vectorises); a NaN
+        // fails it. Only then the careful search for the first bad one.
+        #[allow(
+            clippy::needless_bitwise_bool,
+            reason = "no short circuit, so the compiler can test many at once"
+        )]
+        let usable = out.iter().fold(true, |ok, n| {
+            ok & (n.re >= MIN_N) & (n.re <= MAX_N) & (n.im >= 0.0) & (n.im <= MAX_K)
+        });
+        if usable {
+            return Ok(());
+        }
         for (i, (&n, &w)) in out.iter().zip(wavelengths_nm).enumerate() {
             self.checked(n, w).map_err(|e| (i, e))?;
         }
