@@ -1,5 +1,6 @@
 //! Solver speed: {10, 100, 250} layers × {1001, 10001} wavelengths × {0°, 45°}, with dispersive
-//! and absorbing materials, on one thread and on all cores. Throughput is reported in
+//! and absorbing materials, on one thread and on all cores; 10 and 250 layers on a thick
+//! substrate. Throughput is reported in
 //! layer·wavelength elements (s and p together), so ns per element = 1 / throughput. Also the
 //! Monte Carlo tolerances and layer sensitivities of a 30-layer design. The optimiser's case,
 //! small stacks over 301 wavelengths with indices evaluated and media tilted beforehand, with
@@ -111,6 +112,28 @@ fn solver(c: &mut Criterion) {
             }
             g.finish();
         }
+    }
+}
+
+/// The same designs on a 2 mm substrate (incoherent, so the coating is solved from both
+/// sides and the back face added by intensity), one thread.
+fn thick(c: &mut Criterion) {
+    let one = rayon::ThreadPoolBuilder::new()
+        .num_threads(1)
+        .build()
+        .expect("a thread pool");
+    let wl = wavelengths_nm(400.0, 1400.0, 0.1).expect("grid");
+    for layers in [10, 250] {
+        let mut d = design(layers);
+        d.substrate_mm = Some(2.0);
+        let mut g = c.benchmark_group(format!("thick/layers={layers}/wl={}", wl.len()));
+        g.throughput(Throughput::Elements((layers * wl.len()) as u64));
+        g.sample_size(10).warm_up_time(Duration::from_millis(300));
+        g.measurement_time(Duration::from_secs(2));
+        g.bench_function("aoi=45/threads=1", |b| {
+            one.install(|| b.iter(|| spectrum(black_box(&d), &wl, 45.0, Side::Front)));
+        });
+        g.finish();
     }
 }
 
@@ -244,5 +267,5 @@ fn small(c: &mut Criterion) {
     }
 }
 
-criterion_group!(benches, solver, live, production, small);
+criterion_group!(benches, solver, thick, live, production, small);
 criterion_main!(benches);
