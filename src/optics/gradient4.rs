@@ -14,7 +14,7 @@
 use num_complex::Complex64;
 
 use super::gradient::{Gradient, Pass, finish_gradient};
-use super::lanes::{Cx4, Finished4, FrontEnds4, Tilted4, coherent4, finish4, inv, rotate};
+use super::lanes::{Cx4, Finished4, FrontEnds4, Tilted4, coherent4, inv, rotate};
 use super::simd::{self, F4, Fused, Level, Mad, Plain};
 use super::tmm::{BIG, Coherent, RENORM_EVERY, SMALL, Tilted, finish};
 use super::{Media4, StackAt};
@@ -209,30 +209,7 @@ impl PassKernel<'_> {
             trig,
             below,
         });
-        let finished = lanes_ends.map(|e| {
-            let one = Cx4 {
-                re: F4::ONE,
-                im: F4::ZERO,
-            };
-            [
-                finish4(
-                    e.eta0[0],
-                    v[0][0],
-                    v[0][1],
-                    e.eta_sub[0],
-                    one,
-                    log_scale + norm[0],
-                ),
-                finish4(
-                    e.eta0[1],
-                    v[1][0],
-                    v[1][1],
-                    e.eta_sub[1],
-                    e.t_factor_p,
-                    log_scale + norm[1],
-                ),
-            ]
-        });
+        let finished = lanes_ends.map(|e| e.finish(v, [log_scale + norm[0], log_scale + norm[1]]));
         finish_each(
             out,
             finished.as_ref(),

@@ -359,6 +359,29 @@ impl FrontEnds4 {
     }
 }
 
+impl FrontEnds4 {
+    /// R, T, A and the amplitudes of each polarisation (s, p) from its final [B; C] and the
+    /// natural logarithm of the scale taken out of it.
+    #[inline(always)]
+    pub(crate) fn finish(
+        &self,
+        [[bs, cs], [bp, cp]]: [[Cx4; 2]; 2],
+        log: [F4; 2],
+    ) -> [Finished4; 2] {
+        [
+            finish4(self.eta0[0], bs, cs, self.eta_sub[0], Cx4::ONE, log[0]),
+            finish4(
+                self.eta0[1],
+                bp,
+                cp,
+                self.eta_sub[1],
+                self.t_factor_p,
+                log[1],
+            ),
+        ]
+    }
+}
+
 /// The responses of `layers` between `ends` at four wavelengths: the layer loop and the
 /// finish in lanes, products fused where `S` has the instructions.
 #[inline(always)]
@@ -398,21 +421,7 @@ fn front_finished<'a, S: pulp::Simd, I: Iterator<Item = (&'a Tilted4, f64)>>(
     } else {
         product4::<Fused>(layers, ends.eta_sub, k0)
     };
-    let one = Cx4 {
-        re: F4::ONE,
-        im: F4::ZERO,
-    };
-    [
-        finish4(ends.eta0[0], bs, cs, ends.eta_sub[0], one, log_s),
-        finish4(
-            ends.eta0[1],
-            bp,
-            cp,
-            ends.eta_sub[1],
-            ends.t_factor_p,
-            log_p,
-        ),
-    ]
+    ends.finish([[bs, cs], [bp, cp]], [log_s, log_p])
 }
 
 /// [`Front4`] over a whole [`FrontRun`], four points at a time, each group's results written
