@@ -36,6 +36,29 @@ impl fmt::Display for Short {
     }
 }
 
+/// Displays an `f64` with a fixed number of decimals (the second field), without a minus sign
+/// on a value that rounds to zero: "0.0", not "-0.0".
+///
+/// ```
+/// use stackwise::number::Fixed;
+/// assert_eq!(Fixed(-0.03, 1).to_string(), "0.0");
+/// assert_eq!(Fixed(-0.06, 1).to_string(), "-0.1");
+/// assert_eq!(Fixed(12.345, 2).to_string(), "12.35");
+/// assert_eq!(Fixed(-0.0, 0).to_string(), "0");
+/// ```
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Fixed(pub f64, pub usize);
+
+impl fmt::Display for Fixed {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let s = format!("{:.*}", self.1, self.0);
+        match s.strip_prefix('-') {
+            Some(rest) if rest.bytes().all(|b| b == b'0' || b == b'.') => f.write_str(rest),
+            _ => f.write_str(&s),
+        }
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

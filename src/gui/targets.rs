@@ -9,6 +9,7 @@ use crate::design::{
     ColourCoordinate, ColourLight, ColourObserver, Design, Measure, Pol, Quantity, Target,
     TargetKind,
 };
+use crate::number::Fixed;
 use crate::optimize::Evaluation;
 
 use super::document::Edit;
@@ -50,12 +51,14 @@ fn computed(t: &Target, values: &[f64]) -> Option<String> {
     let lo = values.iter().copied().fold(f64::INFINITY, f64::min);
     let hi = values.iter().copied().fold(f64::NEG_INFINITY, f64::max);
     match t.measure {
-        Measure::Gdd if values.len() == 1 => Some(format!("GDD {lo:.1} fs²")),
-        Measure::Gdd if !values.is_empty() => Some(format!("GDD {lo:.1} to {hi:.1} fs²")),
+        Measure::Gdd if values.len() == 1 => Some(format!("GDD {} fs²", Fixed(lo, 1))),
+        Measure::Gdd if !values.is_empty() => {
+            Some(format!("GDD {} to {} fs²", Fixed(lo, 1), Fixed(hi, 1)))
+        }
         Measure::Spectral | Measure::Gdd => None,
         Measure::Colour { coordinate, .. } => values
             .first()
-            .map(|v| format!("{} {v:.2}", coordinate.symbol())),
+            .map(|&v| format!("{} {}", coordinate.symbol(), Fixed(v, 2))),
     }
 }
 
