@@ -13,6 +13,7 @@ pub mod admittance;
 pub mod color;
 pub mod compare;
 pub mod field;
+mod front;
 mod grid;
 mod limits;
 pub mod map;
