@@ -9,8 +9,8 @@ use crate::design::Design;
 use crate::gui::theme;
 use crate::optics::field::Polarisation;
 
-use super::cache::{Progress, ViewCache};
-use super::{Point, PointKey, Runner, Stamp, Subject, busy_ui, shown, warnings_ui};
+use super::cache::ViewCache;
+use super::{Point, PointKey, Runner, Stamp, Subject, warnings_ui};
 
 /// The thickness step of the locus: 200 samples per wavelength, as the command line's
 /// default.
@@ -88,19 +88,10 @@ impl AdmittanceView {
 
     pub(super) fn ui(&mut self, ui: &mut egui::Ui, subject: Subject<'_>, run: &Runner) {
         self.point.ui(ui);
-        let Point {
-            wavelength_nm: wl,
-            aoi_deg: aoi,
-            pol,
-        } = self.point;
-        let key = (subject.stamp(), self.point.key());
-        let design = subject.design;
-        self.cache.update(&key, false, run, || {
-            let d = design.clone();
-            move |_: Progress<'_, ()>| compute(&d, wl, aoi, pol)
-        });
-        busy_ui(ui, self.cache.busy());
-        let Some(l) = shown(ui, self.cache.result()) else {
+        let Some(l) = self
+            .point
+            .result(ui, &mut self.cache, subject, run, compute)
+        else {
             return;
         };
         warnings_ui(ui, &l.locus.warnings);

@@ -22,6 +22,7 @@ use crate::analysis::Warning;
 use crate::design::Design;
 use crate::optics::field::Polarisation;
 
+use self::cache::{Progress, ViewCache};
 use super::designs::DesignId;
 use super::jobs::Waker;
 use super::plots::{ViewSettings, number_ui};
@@ -230,6 +231,27 @@ impl Point {
             self.aoi_deg.to_bits(),
             self.pol,
         )
+    }
+
+    /// The result at this point of a view that computes one (field, admittance): brings
+    /// `cache` up to date with `compute` for `subject`, marks a computation under way, and
+    /// returns the result on show (an error is shown in its place).
+    fn result<'c, T: Send + 'static>(
+        self,
+        ui: &mut egui::Ui,
+        cache: &'c mut ViewCache<(Stamp, PointKey), T>,
+        subject: Subject<'_>,
+        run: &Runner,
+        compute: fn(&Design, f64, f64, Polarisation) -> Result<T, String>,
+    ) -> Option<&'c T> {
+        let key = (subject.stamp(), self.key());
+        let design = subject.design;
+        cache.update(&key, false, run, || {
+            let d = design.clone();
+            move |_: Progress<'_, ()>| compute(&d, self.wavelength_nm, self.aoi_deg, self.pol)
+        });
+        busy_ui(ui, cache.busy());
+        shown(ui, cache.result())
     }
 
     /// Its control row.
