@@ -659,6 +659,87 @@ impl<'a, I: Iterator<Item = (&'a Tilted4, f64)>> pulp::WithSimd for Product<I> {
     }
 }
 
+/// One layer's phase δ = k₀ q d at four points: the sine and cosine of Re δ, and for a layer
+/// that absorbs or is evanescent cos δ and i sin δ scaled by e^(−Im δ) (so no division is
+/// needed), with Im δ, the logarithm of that scale.
+#[derive(Clone, Copy)]
+pub(crate) struct Phase {
+    pub(crate) sin_a: F4,
+    pub(crate) cos_a: F4,
+    /// cos δ · e^(−Im δ) (cos Re δ when the layer is lossless).
+    pub(crate) cos_d: Cx4,
+    /// i sin δ · e^(−Im δ) (i sin Re δ when the layer is lossless).
+    pub(crate) i_sin_d: Cx4,
+    /// Im δ ≥ 0 (q is on the decaying branch); zero for a lossless layer.
+    pub(crate) im_delta: F4,
+    /// The layer is lossless and propagating: cos δ and the admittances are real, i sin δ is
+    /// imaginary, so each complex product is two real ones.
+    pub(crate) real: bool,
+}
+
+impl Phase {
+    /// The phase of layer `m` with k₀·d = `kd`.
+    #[inline(always)]
+    pub(crate) fn new<M: Mad>(m: &Tilted4, kd: F4) -> Self {
+        let (sin_a, cos_a) = (m.q.re * kd).sin_cos_with::<M>();
+        if m.real {
+            return Self {
+                sin_a,
+                cos_a,
+                cos_d: Cx4 {
+                    re: cos_a,
+                    im: F4::ZERO,
+                },
+                i_sin_d: Cx4 {
+                    re: F4::ZERO,
+                    im: sin_a,
+                },
+                im_delta: F4::ZERO,
+                real: true,
+            };
+        }
+        // cosh b · e^(−b) and sinh b · e^(−b), with b = Im δ
+        let b = m.q.im * kd;
+        let em = (-b).exp_with::<M>();
+        let em2 = em * em;
+        let half = F4::splat(0.5);
+        let (ch, sh) = ((F4::ONE + em2) * half, (F4::ONE - em2) * half);
+        // cos(a + ib) = cos a cosh b − i sin a sinh b; i sin(a + ib) = −cos a sinh b + i sin a cosh b
+        Self {
+            sin_a,
+            cos_a,
+            cos_d: Cx4 {
+                re: cos_a * ch,
+                im: -(sin_a * sh),
+            },
+            i_sin_d: Cx4 {
+                re: -(cos_a * sh),
+                im: sin_a * ch,
+            },
+            im_delta: b,
+            real: false,
+        }
+    }
+
+    /// The column [B; C] times the layer's (scaled) matrix for one polarisation, admittance
+    /// `eta`.
+    #[inline(always)]
+    pub(crate) fn through<M: Mad>(&self, [b, c]: [Cx4; 2], eta: Cx4, inv_eta: Cx4) -> [Cx4; 2] {
+        if self.real {
+            let s = self.sin_a;
+            return rotate::<M>([b, c], self.cos_a, s * inv_eta.re, s * eta.re);
+        }
+        let (x, y) = (
+            self.i_sin_d.mul_m::<M>(inv_eta),
+            self.i_sin_d.mul_m::<M>(eta),
+        );
+        [
+            self.cos_d.mul_sub::<M>(b, x, c),
+            self.cos_d.mul_sub::<M>(c, y, b),
+        ]
+    }
+}
+
 /// [B; C] for s and p after all `layers`, starting from [1; η_sub], and the natural logarithm
 /// of the scale taken out of each (s, p). Always inlined, so it is compiled for the caller's
 /// instruction set; `M` is [`Fused`] only where that set has fused multiply–adds.
@@ -672,13 +753,8 @@ fn product4<'a, M: Mad>(
     eta_sub: [Cx4; 2],
     k0: F4,
 ) -> ([(Cx4, Cx4); 2], F4, F4) {
-    let one = Cx4 {
-        re: F4::ONE,
-        im: F4::ZERO,
-    };
-    let half = F4::splat(0.5);
-    let (mut bs, mut cs) = (one, eta_sub[0]);
-    let (mut bp, mut cp) = (one, eta_sub[1]);
+    let (mut bs, mut cs) = (Cx4::ONE, eta_sub[0]);
+    let (mut bp, mut cp) = (Cx4::ONE, eta_sub[1]);
     let mut log_scale = F4::ZERO;
     let (mut norm_s, mut norm_p) = (F4::ZERO, F4::ZERO);
     let mut since_renorm = 0;
@@ -689,57 +765,10 @@ fn product4<'a, M: Mad>(
             renorm4(&mut bs, &mut cs, &mut norm_s);
             renorm4(&mut bp, &mut cp, &mut norm_p);
         }
-        let kd = k0 * F4::splat(d_nm);
-        let a = m.q.re * kd;
-        let (sin_a, cos_a) = a.sin_cos_with::<M>();
-        if m.real {
-            // Lossless and propagating: cos δ and the admittances are real, i sin δ is
-            // imaginary, so each complex product is two real ones.
-            [bs, cs] = rotate::<M>(
-                [bs, cs],
-                cos_a,
-                sin_a * m.inv_eta[0].re,
-                sin_a * m.eta[0].re,
-            );
-            [bp, cp] = rotate::<M>(
-                [bp, cp],
-                cos_a,
-                sin_a * m.inv_eta[1].re,
-                sin_a * m.eta[1].re,
-            );
-            continue;
-        }
-        // cosh b · e^(−b) and sinh b · e^(−b), with b = Im δ >= 0 (q is on the decaying branch)
-        let b = m.q.im * kd;
-        let em = (-b).exp_with::<M>();
-        let em2 = em * em;
-        log_scale += b;
-        let (ch, sh) = ((F4::ONE + em2) * half, (F4::ONE - em2) * half);
-        // cos(a + ib) = cos a cosh b − i sin a sinh b; i sin(a + ib) = −cos a sinh b + i sin a cosh b
-        let cos_d = Cx4 {
-            re: cos_a * ch,
-            im: -(sin_a * sh),
-        };
-        let i_sin_d = Cx4 {
-            re: -(cos_a * sh),
-            im: sin_a * ch,
-        };
-        let (xs, ys) = (
-            i_sin_d.mul_m::<M>(m.inv_eta[0]),
-            i_sin_d.mul_m::<M>(m.eta[0]),
-        );
-        (bs, cs) = (
-            cos_d.mul_sub::<M>(bs, xs, cs),
-            cos_d.mul_sub::<M>(cs, ys, bs),
-        );
-        let (xp, yp) = (
-            i_sin_d.mul_m::<M>(m.inv_eta[1]),
-            i_sin_d.mul_m::<M>(m.eta[1]),
-        );
-        (bp, cp) = (
-            cos_d.mul_sub::<M>(bp, xp, cp),
-            cos_d.mul_sub::<M>(cp, yp, bp),
-        );
+        let phase = Phase::new::<M>(m, k0 * F4::splat(d_nm));
+        log_scale += phase.im_delta;
+        [bs, cs] = phase.through::<M>([bs, cs], m.eta[0], m.inv_eta[0]);
+        [bp, cp] = phase.through::<M>([bp, cp], m.eta[1], m.inv_eta[1]);
     }
     renorm4(&mut bs, &mut cs, &mut norm_s);
     renorm4(&mut bp, &mut cp, &mut norm_p);
